@@ -1,0 +1,1 @@
+//! The library surface: fit, infer and rank on in-memory columns.

@@ -1,0 +1,24 @@
+//! foothold: starting values for nonlinear regression, earned from the model
+//! and the data, ranked by a multistart search, refined to a converged fit.
+//!
+//! Data flows one way: parse → analyse → detect → match → scan → refine → rank → report.
+//! - [`symbolic`]: model language, calculus, structural analysis, compiled evaluation.
+//! - [`data`]: reading tables into columns.
+//! - [`features`]: plateaus, intercepts, straight segments, peaks, periods in the data.
+//! - [`infer`]: limits + features → starting values with their derivations.
+//! - [`fit`]: the Levenberg–Marquardt fitter and the statistics of a fit.
+//! - [`search`]: multistart global search, clustering and ranking of minima.
+//! - [`report`]: tables, JSON, plots and the HTML report.
+//! - [`api`]: the small library surface (`fit`, `infer`, `rank` on in-memory columns).
+
+pub mod api;
+pub mod cli;
+pub mod data;
+pub mod error;
+pub mod features;
+pub mod fit;
+pub mod infer;
+pub mod report;
+pub mod rules;
+pub mod search;
+pub mod symbolic;

@@ -1,0 +1,1 @@
+//! Output: tables, JSON and other formats, plots and the HTML report.

@@ -1,0 +1,2 @@
+//! Declarative knowledge loaded from `rules/` (YAML): model library,
+//! transforms, rewrite rules and neutral values.

@@ -1,0 +1,13 @@
+//! The model language and its calculus: parsing, binding to data, simplification,
+//! differentiation, compiled evaluation, and the structural analysis inference needs.
+
+pub mod diff;
+pub mod expr;
+pub mod model;
+pub mod parse;
+pub mod simplify;
+pub mod tape;
+
+pub use expr::{BinOp, Expr, Func};
+pub use model::{Model, ModelError};
+pub use parse::{parse_formula, ParseError, ParsedFormula};

@@ -1,0 +1,446 @@
+//! Reads a model formula (`rhs` or `lhs = rhs`) in plain mathematical
+//! notation into expression trees, with errors that point at the character.
+//!
+//! Grammar (recursive descent, one token of look-ahead):
+//! ```text
+//! formula := expr ( '=' expr )?
+//! expr    := term ( ('+' | '-') term )*
+//! term    := unary ( ('*' | '/') unary )*
+//! unary   := ('-' | '+') unary | power
+//! power   := primary ( ('^' | '**') unary )?      right-associative
+//! primary := number | name | name '(' expr ')' | '(' expr ')'
+//! ```
+
+use super::expr::{BinOp, Expr, Func};
+use thiserror::Error;
+
+/// Longest formula accepted, in characters; longer input is refused before parsing.
+pub const MAX_FORMULA_CHARS: usize = 20_000;
+/// Deepest expression tree accepted, so that every recursive pass stays within the stack.
+pub const MAX_DEPTH: usize = 500;
+
+/// A formula that could not be read, with the character where reading stopped.
+#[derive(Debug, Clone, PartialEq, Error)]
+#[error("{message} at character {} of the formula\n  {formula}\n  {caret}^", position + 1, caret = " ".repeat(*position))]
+pub struct ParseError {
+    /// What was wrong and what was expected.
+    pub message: String,
+    /// Zero-based character offset into `formula`.
+    pub position: usize,
+    /// The formula as given (a long one is shortened around the position).
+    pub formula: String,
+}
+
+/// The result of parsing: trees whose `Param(i)` nodes refer to `names[i]`;
+/// binding to a dataset (`symbolic::model`) splits names into variables and parameters.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ParsedFormula {
+    /// Left side, when the formula has one (`log(y) = ...`).
+    pub lhs: Option<Expr>,
+    /// Right side: the model.
+    pub rhs: Expr,
+    /// Every name used, in order of first appearance.
+    pub names: Vec<String>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+enum Tok {
+    Num(f64),
+    Name(String),
+    Op(char),
+    Pow,
+    LParen,
+    RParen,
+    Eq,
+    End,
+}
+
+fn describe(t: &Tok) -> String {
+    match t {
+        Tok::Num(v) => format!("number {}", v),
+        Tok::Name(n) => format!("name '{}'", n),
+        Tok::Op(c) => format!("'{}'", c),
+        Tok::Pow => "'^'".into(),
+        Tok::LParen => "'('".into(),
+        Tok::RParen => "')'".into(),
+        Tok::Eq => "'='".into(),
+        Tok::End => "end of formula".into(),
+    }
+}
+
+struct Parser {
+    chars: Vec<char>,
+    toks: Vec<(Tok, usize)>,
+    at: usize,
+    names: Vec<String>,
+    depth: usize,
+}
+
+/// Parses a formula. Constants `pi` and `e` become numbers; every other name
+/// not followed by `(` becomes a symbol; a name followed by `(` must be a known function.
+pub fn parse_formula(text: &str) -> Result<ParsedFormula, ParseError> {
+    let chars: Vec<char> = text.chars().collect();
+    if chars.len() > MAX_FORMULA_CHARS {
+        return Err(ParseError {
+            message: format!(
+                "formula is {} characters long; the limit is {}",
+                chars.len(),
+                MAX_FORMULA_CHARS
+            ),
+            position: 0,
+            formula: chars[..60].iter().collect::<String>() + "...",
+        });
+    }
+    let toks = tokenize(&chars, text)?;
+    let mut p = Parser {
+        chars,
+        toks,
+        at: 0,
+        names: Vec::new(),
+        depth: 0,
+    };
+    if matches!(p.peek(), Tok::End) {
+        return Err(p.error_here("formula is empty: expected a model such as 'a*exp(-k*x)'"));
+    }
+    let first = p.expr()?;
+    let (lhs, rhs) = if matches!(p.peek(), Tok::Eq) {
+        p.at += 1;
+        if matches!(p.peek(), Tok::End) {
+            return Err(p.error_here("expected the model's right-hand side after '='"));
+        }
+        let rhs = p.expr()?;
+        (Some(first), rhs)
+    } else {
+        (None, first)
+    };
+    match p.peek() {
+        Tok::End => {}
+        Tok::RParen => return Err(p.error_here("unbalanced ')': no '(' is open here")),
+        Tok::Eq => return Err(p.error_here("a formula has at most one '='")),
+        t => {
+            let what = describe(t);
+            return Err(p.error_here(&format!(
+                "expected an operator (+ - * / ^) or the end, found {}",
+                what
+            )));
+        }
+    }
+    Ok(ParsedFormula {
+        lhs,
+        rhs,
+        names: p.names,
+    })
+}
+
+fn tokenize(chars: &[char], text: &str) -> Result<Vec<(Tok, usize)>, ParseError> {
+    let err = |pos: usize, msg: String| ParseError {
+        message: msg,
+        position: pos,
+        formula: text.to_string(),
+    };
+    let mut out = Vec::new();
+    let mut i = 0;
+    while i < chars.len() {
+        let c = chars[i];
+        if c.is_whitespace() {
+            i += 1;
+            continue;
+        }
+        let start = i;
+        if c.is_ascii_digit() || (c == '.' && chars.get(i + 1).is_some_and(|d| d.is_ascii_digit())) {
+            while i < chars.len() && (chars[i].is_ascii_digit() || chars[i] == '.') {
+                i += 1;
+            }
+            if i < chars.len() && (chars[i] == 'e' || chars[i] == 'E') {
+                let mut j = i + 1;
+                if j < chars.len() && (chars[j] == '+' || chars[j] == '-') {
+                    j += 1;
+                }
+                if j < chars.len() && chars[j].is_ascii_digit() {
+                    while j < chars.len() && chars[j].is_ascii_digit() {
+                        j += 1;
+                    }
+                    i = j;
+                }
+            }
+            let s: String = chars[start..i].iter().collect();
+            let v: f64 = s
+                .parse()
+                .map_err(|_| err(start, format!("'{}' is not a number", s)))?;
+            out.push((Tok::Num(v), start));
+            continue;
+        }
+        if c.is_alphabetic() || c == '_' {
+            while i < chars.len() && (chars[i].is_alphanumeric() || chars[i] == '_') {
+                i += 1;
+            }
+            out.push((Tok::Name(chars[start..i].iter().collect()), start));
+            continue;
+        }
+        let tok = match c {
+            '+' | '-' | '/' => Tok::Op(c),
+            '*' => {
+                if chars.get(i + 1) == Some(&'*') {
+                    i += 1;
+                    Tok::Pow
+                } else {
+                    Tok::Op('*')
+                }
+            }
+            '^' => Tok::Pow,
+            '(' => Tok::LParen,
+            ')' => Tok::RParen,
+            '=' => Tok::Eq,
+            _ => return Err(err(start, format!("unexpected character '{}'", c))),
+        };
+        i += 1;
+        out.push((tok, start));
+    }
+    out.push((Tok::End, chars.len()));
+    Ok(out)
+}
+
+impl Parser {
+    fn peek(&self) -> &Tok {
+        &self.toks[self.at].0
+    }
+
+    fn pos(&self) -> usize {
+        self.toks[self.at].1
+    }
+
+    fn error_at(&self, pos: usize, msg: &str) -> ParseError {
+        ParseError {
+            message: msg.to_string(),
+            position: pos,
+            formula: self.chars.iter().collect(),
+        }
+    }
+
+    fn error_here(&self, msg: &str) -> ParseError {
+        self.error_at(self.pos(), msg)
+    }
+
+    fn enter(&mut self) -> Result<(), ParseError> {
+        self.depth += 1;
+        if self.depth > MAX_DEPTH {
+            return Err(self.error_here(&format!(
+                "formula is nested more than {} levels deep",
+                MAX_DEPTH
+            )));
+        }
+        Ok(())
+    }
+
+    fn expr(&mut self) -> Result<Expr, ParseError> {
+        self.enter()?;
+        let mut acc = self.term()?;
+        let mut chain = 0;
+        while let Tok::Op(c @ ('+' | '-')) = *self.peek() {
+            self.at += 1;
+            chain += 1;
+            if self.depth + chain > MAX_DEPTH {
+                return Err(self.error_here(&format!(
+                    "formula has more than {} terms in one sum",
+                    MAX_DEPTH
+                )));
+            }
+            let rhs = self.term()?;
+            let op = if c == '+' { BinOp::Add } else { BinOp::Sub };
+            acc = Expr::Bin(op, Box::new(acc), Box::new(rhs));
+        }
+        self.depth -= 1;
+        Ok(acc)
+    }
+
+    fn term(&mut self) -> Result<Expr, ParseError> {
+        self.enter()?;
+        let mut acc = self.unary()?;
+        let mut chain = 0;
+        while let Tok::Op(c @ ('*' | '/')) = *self.peek() {
+            self.at += 1;
+            chain += 1;
+            if self.depth + chain > MAX_DEPTH {
+                return Err(self.error_here(&format!(
+                    "formula has more than {} factors in one product",
+                    MAX_DEPTH
+                )));
+            }
+            let rhs = self.unary()?;
+            let op = if c == '*' { BinOp::Mul } else { BinOp::Div };
+            acc = Expr::Bin(op, Box::new(acc), Box::new(rhs));
+        }
+        self.depth -= 1;
+        Ok(acc)
+    }
+
+    fn unary(&mut self) -> Result<Expr, ParseError> {
+        self.enter()?;
+        let out = match *self.peek() {
+            Tok::Op('-') => {
+                self.at += 1;
+                let a = self.unary()?;
+                match a {
+                    Expr::Num(v) => Expr::Num(-v),
+                    other => Expr::Neg(Box::new(other)),
+                }
+            }
+            Tok::Op('+') => {
+                self.at += 1;
+                self.unary()?
+            }
+            _ => self.power()?,
+        };
+        self.depth -= 1;
+        Ok(out)
+    }
+
+    fn power(&mut self) -> Result<Expr, ParseError> {
+        let base = self.primary()?;
+        if matches!(self.peek(), Tok::Pow) {
+            self.at += 1;
+            let exp = self.unary()?;
+            return Ok(Expr::Bin(BinOp::Pow, Box::new(base), Box::new(exp)));
+        }
+        Ok(base)
+    }
+
+    fn primary(&mut self) -> Result<Expr, ParseError> {
+        let pos = self.pos();
+        match self.peek().clone() {
+            Tok::Num(v) => {
+                self.at += 1;
+                Ok(Expr::Num(v))
+            }
+            Tok::Name(name) => {
+                self.at += 1;
+                if matches!(self.peek(), Tok::LParen) {
+                    let f = Func::from_name(&name).ok_or_else(|| {
+                        self.error_at(
+                            pos,
+                            &format!(
+                                "unknown function '{}'; known: {}",
+                                name,
+                                Func::ALL.iter().map(|f| f.name()).collect::<Vec<_>>().join(", ")
+                            ),
+                        )
+                    })?;
+                    self.at += 1;
+                    if matches!(self.peek(), Tok::RParen) {
+                        return Err(self.error_here(&format!("{}() needs an argument", name)));
+                    }
+                    let arg = self.expr()?;
+                    self.expect_close(pos + name.chars().count())?;
+                    return Ok(Expr::Call(f, Box::new(arg)));
+                }
+                if Func::from_name(&name).is_some() {
+                    return Err(self.error_at(
+                        pos,
+                        &format!("'{}' is a function: write {}(...)", name, name),
+                    ));
+                }
+                match name.as_str() {
+                    "pi" => Ok(Expr::Num(std::f64::consts::PI)),
+                    "e" => Ok(Expr::Num(std::f64::consts::E)),
+                    _ => {
+                        let idx = match self.names.iter().position(|n| *n == name) {
+                            Some(i) => i,
+                            None => {
+                                self.names.push(name);
+                                self.names.len() - 1
+                            }
+                        };
+                        Ok(Expr::Param(idx))
+                    }
+                }
+            }
+            Tok::LParen => {
+                self.at += 1;
+                if matches!(self.peek(), Tok::RParen) {
+                    return Err(self.error_here("empty parentheses: expected an expression"));
+                }
+                let e = self.expr()?;
+                self.expect_close(pos)?;
+                Ok(e)
+            }
+            Tok::End => Err(self.error_here("formula ends too early: expected a number, a name or '('")),
+            t => Err(self.error_here(&format!(
+                "expected a number, a name or '(', found {}",
+                describe(&t)
+            ))),
+        }
+    }
+
+    fn expect_close(&mut self, open_pos: usize) -> Result<(), ParseError> {
+        if matches!(self.peek(), Tok::RParen) {
+            self.at += 1;
+            Ok(())
+        } else if matches!(self.peek(), Tok::End) {
+            Err(self.error_at(open_pos, "unbalanced '(': no ')' closes it"))
+        } else {
+            let what = describe(self.peek());
+            Err(self.error_here(&format!("expected ')' or an operator, found {}", what)))
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn p(s: &str) -> ParsedFormula {
+        parse_formula(s).unwrap()
+    }
+
+    #[test]
+    fn precedence_and_associativity() {
+        let f = p("a + b*c^d^2");
+        // a + (b * (c ^ (d ^ 2)))
+        assert_eq!(f.names, vec!["a", "b", "c", "d"]);
+        let v = f.rhs.eval(&[1.0, 2.0, 2.0, 1.5], &[]);
+        assert!((v - (1.0 + 2.0 * 2f64.powf(1.5f64.powi(2)))).abs() < 1e-12);
+        // unary minus binds looser than power: -x^2 = -(x^2)
+        assert_eq!(p("-x^2").rhs.eval(&[3.0], &[]), -9.0);
+        assert_eq!(p("2^-1").rhs.eval(&[], &[]), 0.5);
+        assert_eq!(p("2**3").rhs.eval(&[], &[]), 8.0);
+        assert_eq!(p("8/4/2").rhs.eval(&[], &[]), 1.0);
+        assert_eq!(p("8-4-2").rhs.eval(&[], &[]), 2.0);
+    }
+
+    #[test]
+    fn numbers_constants_functions() {
+        assert_eq!(p(".5 + 1.2e-3 + 2E1").rhs.eval(&[], &[]), 0.5 + 1.2e-3 + 20.0);
+        assert!((p("cos(pi) + ln(e)").rhs.eval(&[], &[]) - 0.0).abs() < 1e-15);
+        let f = p("log(y) = b1 - b2*x1*exp(-b3*x2)");
+        assert!(f.lhs.is_some());
+        assert_eq!(f.names, vec!["y", "b1", "b2", "x1", "b3", "x2"]);
+    }
+
+    #[test]
+    fn errors_point_at_the_character() {
+        let e = parse_formula("a*(x+2").unwrap_err();
+        assert_eq!(e.position, 2);
+        assert!(e.message.contains("unbalanced '('"), "{}", e);
+        let e = parse_formula("a*x)").unwrap_err();
+        assert_eq!(e.position, 3);
+        let e = parse_formula("a*foo(x)").unwrap_err();
+        assert!(e.message.contains("unknown function 'foo'"));
+        assert_eq!(e.position, 2);
+        let e = parse_formula("a*").unwrap_err();
+        assert_eq!(e.position, 2);
+        assert!(parse_formula("").unwrap_err().message.contains("empty"));
+        assert!(parse_formula("a $ b").unwrap_err().message.contains("'$'"));
+        let shown = parse_formula("a+*b").unwrap_err().to_string();
+        assert!(shown.contains("  a+*b\n    ^"), "{}", shown);
+    }
+
+    #[test]
+    fn limits_are_errors_not_crashes() {
+        let deep = "(".repeat(5_000) + "x" + &")".repeat(5_000);
+        assert!(parse_formula(&deep).unwrap_err().message.contains("nested"));
+        let long = "x+".repeat(6000) + "x";
+        assert!(parse_formula(&long).is_err());
+        let huge = "x".repeat(MAX_FORMULA_CHARS + 1);
+        assert!(parse_formula(&huge).unwrap_err().message.contains("limit"));
+    }
+}
