@@ -1,0 +1,3 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+pub mod strd;
