@@ -1,3 +1,4 @@
 //! Helpers shared by the integration tests.
 #![allow(dead_code)]
 pub mod strd;
+pub mod synthetic;
