@@ -1,0 +1,1 @@
+//! Student-t quantiles (placeholder, filled below).
