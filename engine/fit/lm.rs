@@ -47,7 +47,7 @@ impl Default for LmOptions {
             max_iterations: 5000,
             max_evaluations: 20000,
             initial_step: 100.0,
-            polish_steps: 4,
+            polish_steps: 60,
             zero_residual_scale: None,
         }
     }
@@ -472,12 +472,16 @@ pub fn levenberg_marquardt(problem: &dyn Residuals, start: &[f64], opts: &LmOpti
         }
     }
 
-    // Gauss–Newton polishing: full steps from the SVD of J, kept only while
-    // they lower the sum of squares.
+    // Gauss–Newton polishing. Near a minimum the sum of squares is flat to
+    // second order, so ftol can stop the loop while the parameters still carry
+    // errors near √ε. Full Gauss–Newton steps −J⁺r (SVD) converge the
+    // parameters themselves; a step is kept when it lowers the sum of squares,
+    // or leaves it unchanged within rounding while the steps keep contracting.
     let mut polished = 0;
-    if opts.polish_steps > 0 && stop != StopReason::ZeroResidual {
+    if opts.polish_steps > 0 && stop != StopReason::ZeroResidual && fnorm > 0.0 {
         let mut jtop = DMatrix::zeros(m_obs, n);
         let mut trial = vec![0.0; m];
+        let mut prev_rel = f64::INFINITY;
         for _ in 0..opts.polish_steps {
             if c.evals >= opts.max_evaluations || fnorm == 0.0 {
                 break;
@@ -490,17 +494,28 @@ pub fn levenberg_marquardt(problem: &dyn Residuals, start: &[f64], opts: &LmOpti
             let Some(step) = gauss_newton_step(&jtop, &fvec[..m_obs]) else {
                 break;
             };
-            let xt: Vec<f64> = x.iter().zip(step.iter()).map(|(a, d)| a + d).collect();
-            if xt.iter().any(|v| !v.is_finite()) {
+            // Largest step relative to the parameter's size.
+            let rel = step
+                .iter()
+                .zip(x.iter())
+                .map(|(d, v)| d.abs() / v.abs().max(f64::MIN_POSITIVE))
+                .fold(0.0, f64::max);
+            if !(rel > 0.0) || !rel.is_finite() {
                 break;
             }
+            let xt: Vec<f64> = x.iter().zip(step.iter()).map(|(a, d)| a + d).collect();
             let f1 = eval_norm(problem, &xt, &mut trial, m_obs, &mut c);
-            if f1 < fnorm {
-                x = xt;
-                fvec.copy_from_slice(&trial);
-                fnorm = f1;
-                polished += 1;
-            } else {
+            let lower = f1 < fnorm;
+            let level = f1 <= fnorm * (1.0 + 1e-12) && rel < 1e-4 && rel < 0.9 * prev_rel;
+            if !(lower || level) {
+                break;
+            }
+            x = xt;
+            fvec.copy_from_slice(&trial);
+            fnorm = f1;
+            polished += 1;
+            prev_rel = rel;
+            if rel <= 4.0 * eps {
                 break;
             }
         }
