@@ -8,6 +8,7 @@
 //! The files are read from `$FOOTHOLD_STRD_DIR` or `../shared/nist-strd/`.
 
 use foothold::fit::lm::{levenberg_marquardt, LmOptions};
+use foothold::fit::stats::summarize;
 use foothold::fit::Residuals;
 use nalgebra::DMatrix;
 use std::ops::{Add, Div, Mul, Neg, Sub};
@@ -40,17 +41,11 @@ impl D {
         let e = self.v.exp();
         self.chain(e, e)
     }
-    fn ln(self) -> D {
-        self.chain(self.v.ln(), 1.0 / self.v)
-    }
     fn cos(self) -> D {
         self.chain(self.v.cos(), -self.v.sin())
     }
     fn sin(self) -> D {
         self.chain(self.v.sin(), self.v.cos())
-    }
-    fn atan(self) -> D {
-        self.chain(self.v.atan(), 1.0 / (1.0 + self.v * self.v))
     }
     /// Two-argument arctangent atan2(self, x), angle of the point (x, self).
     fn atan2(self, x: D) -> D {
@@ -221,6 +216,7 @@ struct StrdFile {
     start1: Vec<f64>,
     start2: Vec<f64>,
     certified: Vec<f64>,
+    certified_sd: Vec<f64>,
     certified_ssr: f64,
     y: Vec<f64>,
     x: Vec<Vec<f64>>,
@@ -235,7 +231,8 @@ fn parse_numbers(s: &str) -> Option<Vec<f64>> {
 /// certified residual sum of squares and the data block after the last "Data:" line.
 fn parse_strd(text: &str) -> Result<StrdFile, String> {
     let lines: Vec<&str> = text.lines().collect();
-    let (mut start1, mut start2, mut certified) = (vec![], vec![], vec![]);
+    let (mut start1, mut start2, mut certified, mut certified_sd) =
+        (vec![], vec![], vec![], vec![]);
     let mut certified_ssr = f64::NAN;
     for line in &lines {
         let t = line.trim();
@@ -249,6 +246,7 @@ fn parse_strd(text: &str) -> Result<StrdFile, String> {
                 start1.push(nums[0]);
                 start2.push(nums[1]);
                 certified.push(nums[2]);
+                certified_sd.push(nums[3]);
             }
         }
         if let Some(rest) = t.strip_prefix("Residual Sum of Squares:") {
@@ -276,6 +274,7 @@ fn parse_strd(text: &str) -> Result<StrdFile, String> {
         start1,
         start2,
         certified,
+        certified_sd,
         certified_ssr,
         y,
         x,
@@ -485,6 +484,7 @@ fn nist_strd_from_both_starts() {
     let opts = LmOptions::default();
     let mut all = vec![];
     let mut bad = vec![];
+    let mut se_scores = vec![];
     for (name, f, log_y) in models() {
         let path = dir.join(format!("{name}.dat"));
         let text = match std::fs::read_to_string(&path) {
@@ -507,8 +507,17 @@ fn nist_strd_from_both_starts() {
             let res = levenberg_marquardt(&problem, start, &opts);
             let score = lre(&res.params, &file.certified);
             let ssr_lre = lre(&[res.ssr], &[file.certified_ssr]);
+            let names: Vec<String> = (1..=np).map(|i| format!("b{i}")).collect();
+            let summary = summarize(&names, &res);
+            let se: Vec<f64> = summary.parameters.iter().map(|e| e.std_error).collect();
+            let se_lre = lre(&se, &file.certified_sd);
+            // Lanczos1 is an exact fit whose certified residuals are rounding
+            // noise, so its standard errors are noise too: printed only.
+            if name != "Lanczos1" {
+                se_scores.push(se_lre);
+            }
             println!(
-                "{name:9} start {}: LRE {score:5.2}  (ssr LRE {ssr_lre:5.2})  {:?}  iter {} eval {}",
+                "{name:9} start {}: LRE {score:5.2}  (ssr {ssr_lre:5.2}, se {se_lre:5.2})  {:?}  iter {} eval {}",
                 k + 1,
                 res.stop,
                 res.iterations,
@@ -547,6 +556,7 @@ fn parser_reads_a_minimal_file() {
     assert_eq!(f.start1, vec![1.0, 4.0]);
     assert_eq!(f.start2, vec![2.0, 5.0]);
     assert_eq!(f.certified, vec![3.5, 6.0]);
+    assert_eq!(f.certified_sd, vec![0.1, 7.0]);
     assert_eq!(f.certified_ssr, 1.25);
     assert_eq!(f.y, vec![1.0, 3.0]);
     assert_eq!(f.x, vec![vec![2.0], vec![4.0]]);

@@ -87,6 +87,20 @@ impl StopReason {
         )
     }
 
+    /// Stable snake_case code (as serialised), e.g. "small_reduction".
+    pub fn code(self) -> &'static str {
+        match self {
+            StopReason::SmallReduction => "small_reduction",
+            StopReason::SmallStep => "small_step",
+            StopReason::SmallGradient => "small_gradient",
+            StopReason::ZeroResidual => "zero_residual",
+            StopReason::MaxIterations => "max_iterations",
+            StopReason::NonFiniteStart => "non_finite_start",
+            StopReason::MaxEvaluations => "max_evaluations",
+            StopReason::Stalled => "stalled",
+        }
+    }
+
     /// Short human-readable description.
     pub fn describe(self) -> &'static str {
         match self {
