@@ -7,7 +7,8 @@
 
 use std::f64::consts::PI;
 
-/// ln Γ(x) for x > 0 by the Lanczos (1964) approximation (g = 7, nine terms),
+/// ln Γ(x) for x > 0 by the rational-series gamma approximation of Press et al.
+/// (1992, §6.1), with P. Godfrey's (2001) coefficients for g = 7 (nine terms),
 /// with the reflection formula below ½. Accurate to about 1e-15 relative.
 pub fn ln_gamma(x: f64) -> f64 {
     const G: f64 = 7.0;
