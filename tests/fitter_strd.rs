@@ -540,7 +540,13 @@ fn nist_strd_from_both_starts() {
         "runs {}  mean LRE {mean:.2}  failures (LRE < 4) {fails}",
         all.len()
     );
+    let se_min = se_scores.iter().cloned().fold(11.0, f64::min);
+    println!("standard errors against certified SDs: worst LRE {se_min:.2}");
     assert!(bad.is_empty(), "runs below LRE 4: {bad:?}");
+    assert!(
+        se_min >= 6.0,
+        "a standard error agrees with NIST to fewer than 6 digits"
+    );
     if all.len() == 54 {
         // The project's acceptance bar for the whole suite.
         assert!(mean >= 9.0, "mean LRE {mean:.2} < 9");
