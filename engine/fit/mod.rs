@@ -4,6 +4,8 @@
 pub mod lm;
 pub mod problem;
 pub mod stats;
+pub mod tdist;
+pub mod trust;
 
 use nalgebra::DMatrix;
 

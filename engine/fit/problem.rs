@@ -11,9 +11,18 @@ use thiserror::Error;
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum ProblemError {
     #[error("{rows} usable rows are too few for {params} parameters: need at least {need}")]
-    TooFewRows { rows: usize, params: usize, need: usize },
+    TooFewRows {
+        rows: usize,
+        params: usize,
+        need: usize,
+    },
     #[error("the left-hand side {lhs} is not finite at row {row} ({response} = {value}); check the data or the transform")]
-    LhsNotFinite { lhs: String, row: usize, response: String, value: f64 },
+    LhsNotFinite {
+        lhs: String,
+        row: usize,
+        response: String,
+        value: f64,
+    },
     #[error("column '{0}' is missing from the data")]
     MissingColumn(String),
 }
@@ -36,7 +45,11 @@ impl Problem {
     }
 
     /// Binds a model to in-memory columns (`x[j]` is `model.vars[j]`; `y` the raw response).
-    pub fn from_columns(model: Model, x: Vec<Vec<f64>>, y: Vec<f64>) -> Result<Problem, ProblemError> {
+    pub fn from_columns(
+        model: Model,
+        x: Vec<Vec<f64>>,
+        y: Vec<f64>,
+    ) -> Result<Problem, ProblemError> {
         let _ = (model, x, y);
         todo!("STUB: owned by the symbolic-core work")
     }
