@@ -77,6 +77,9 @@ fn d(e: &Expr, w: Wrt) -> Expr {
                         let lowered =
                             bin(BinOp::Pow, a.clone(), bin(BinOp::Sub, b.clone(), n(1.0)));
                         bin(BinOp::Mul, bin(BinOp::Mul, b.clone(), lowered), da)
+                    } else if is_zero(a) {
+                        // 0^w is piecewise constant in w (0, 1 or inf): no slope.
+                        n(0.0)
                     } else {
                         // d(u^w) = u^w * (w' log u + w u'/u)
                         let t1 = bin(BinOp::Mul, db, call(Func::Log, a.clone()));
