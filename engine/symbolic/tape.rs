@@ -361,10 +361,12 @@ impl Tape {
             n = n.min(v.len());
         }
         let s = self.scalars(params);
-        let mut cols: Vec<Vec<f64>> = vec![vec![0.0; BLOCK]; self.n_slots];
+        // Scratch sized to the data, so small problems (LM on a few dozen rows) stay cheap.
+        let block = BLOCK.min(n);
+        let mut cols: Vec<Vec<f64>> = vec![vec![0.0; block]; self.n_slots];
         let mut start = 0;
         while start < n {
-            let len = BLOCK.min(n - start);
+            let len = block.min(n - start);
             let end = start + len;
             for ins in &self.vcode {
                 let mut dst = std::mem::take(&mut cols[ins.dst as usize]);
