@@ -8,6 +8,9 @@ pub mod parse;
 pub mod simplify;
 pub mod tape;
 
+pub use diff::{diff_param, diff_var};
 pub use expr::{BinOp, Expr, Func};
 pub use model::{Model, ModelError};
 pub use parse::{parse_formula, ParseError, ParsedFormula};
+pub use simplify::simplify;
+pub use tape::Tape;

@@ -47,7 +47,11 @@ pub struct Model {
 impl Model {
     /// Parses `text` and binds it to `columns`. `response` names the response
     /// column when the formula has no left side (default `y`).
-    pub fn new(text: &str, columns: &[String], response: Option<&str>) -> Result<Model, ModelError> {
+    pub fn new(
+        text: &str,
+        columns: &[String],
+        response: Option<&str>,
+    ) -> Result<Model, ModelError> {
         let parsed = parse_formula(text)?;
         Model::bind(text, parsed, columns, response)
     }
@@ -61,7 +65,9 @@ impl Model {
     ) -> Result<Model, ModelError> {
         let is_col = |n: &str| columns.iter().any(|c| c == n);
         let lhs_names: Vec<usize> = match &parsed.lhs {
-            Some(l) => (0..parsed.names.len()).filter(|&i| l.has_param(i)).collect(),
+            Some(l) => (0..parsed.names.len())
+                .filter(|&i| l.has_param(i))
+                .collect(),
             None => Vec::new(),
         };
         let response = if parsed.lhs.is_some() {
@@ -122,7 +128,9 @@ impl Model {
             });
         }
         if vars.is_empty() {
-            return Err(ModelError::NoPredictor(join(&params.iter().collect::<Vec<_>>())));
+            return Err(ModelError::NoPredictor(join(
+                &params.iter().collect::<Vec<_>>(),
+            )));
         }
         params.sort_by(|a, b| natural_cmp(a, b));
         let rename = |e: &Expr| -> Option<Expr> {
@@ -219,12 +227,20 @@ mod tests {
         assert_eq!(m.params, vec!["b1", "b2", "b10"]);
         assert_eq!(m.vars, vec!["x"]);
         assert_eq!(m.response, "y");
-        assert_eq!(m.rhs.eval(&[1.0, 2.0, 3.0], &[2.0]), 1.0 + 3.0 * 2.0 + 2.0 * 4.0);
+        assert_eq!(
+            m.rhs.eval(&[1.0, 2.0, 3.0], &[2.0]),
+            1.0 + 3.0 * 2.0 + 2.0 * 4.0
+        );
     }
 
     #[test]
     fn left_side_names_the_response() {
-        let m = Model::new("log(y) = b1 - b2*x1*exp(-b3*x2)", &cols(&["y", "x1", "x2"]), None).unwrap();
+        let m = Model::new(
+            "log(y) = b1 - b2*x1*exp(-b3*x2)",
+            &cols(&["y", "x1", "x2"]),
+            None,
+        )
+        .unwrap();
         assert_eq!(m.response, "y");
         assert_eq!(m.vars, vec!["x1", "x2"]);
         assert_eq!(m.lhs.as_ref().unwrap().eval(&[], &[1.0]), 0.0);
@@ -233,11 +249,29 @@ mod tests {
     #[test]
     fn refuses_bad_bindings() {
         let c = cols(&["x", "y"]);
-        assert!(matches!(Model::new("x*2", &c, None), Err(ModelError::NoParameters { .. })));
-        assert!(matches!(Model::new("a*y", &c, None), Err(ModelError::ResponseAsPredictor(_))));
-        assert!(matches!(Model::new("a*x", &c, Some("z")), Err(ModelError::NoResponse(..))));
-        assert!(matches!(Model::new("a", &c, None), Err(ModelError::NoPredictor(_))));
-        assert!(matches!(Model::new("log(q) = a*x", &c, None), Err(ModelError::LhsWithoutColumn { .. })));
-        assert!(matches!(Model::new("y*a = b*x", &c, None), Err(ModelError::LhsWithParameters(_))));
+        assert!(matches!(
+            Model::new("x*2", &c, None),
+            Err(ModelError::NoParameters { .. })
+        ));
+        assert!(matches!(
+            Model::new("a*y", &c, None),
+            Err(ModelError::ResponseAsPredictor(_))
+        ));
+        assert!(matches!(
+            Model::new("a*x", &c, Some("z")),
+            Err(ModelError::NoResponse(..))
+        ));
+        assert!(matches!(
+            Model::new("a", &c, None),
+            Err(ModelError::NoPredictor(_))
+        ));
+        assert!(matches!(
+            Model::new("log(q) = a*x", &c, None),
+            Err(ModelError::LhsWithoutColumn { .. })
+        ));
+        assert!(matches!(
+            Model::new("y*a = b*x", &c, None),
+            Err(ModelError::LhsWithParameters(_))
+        ));
     }
 }

@@ -147,7 +147,8 @@ fn tokenize(chars: &[char], text: &str) -> Result<Vec<(Tok, usize)>, ParseError>
             continue;
         }
         let start = i;
-        if c.is_ascii_digit() || (c == '.' && chars.get(i + 1).is_some_and(|d| d.is_ascii_digit())) {
+        if c.is_ascii_digit() || (c == '.' && chars.get(i + 1).is_some_and(|d| d.is_ascii_digit()))
+        {
             while i < chars.len() && (chars[i].is_ascii_digit() || chars[i] == '.') {
                 i += 1;
             }
@@ -321,7 +322,11 @@ impl Parser {
                             &format!(
                                 "unknown function '{}'; known: {}",
                                 name,
-                                Func::ALL.iter().map(|f| f.name()).collect::<Vec<_>>().join(", ")
+                                Func::ALL
+                                    .iter()
+                                    .map(|f| f.name())
+                                    .collect::<Vec<_>>()
+                                    .join(", ")
                             ),
                         )
                     })?;
@@ -363,7 +368,9 @@ impl Parser {
                 self.expect_close(pos)?;
                 Ok(e)
             }
-            Tok::End => Err(self.error_here("formula ends too early: expected a number, a name or '('")),
+            Tok::End => {
+                Err(self.error_here("formula ends too early: expected a number, a name or '('"))
+            }
             t => Err(self.error_here(&format!(
                 "expected a number, a name or '(', found {}",
                 describe(&t)
@@ -409,7 +416,10 @@ mod tests {
 
     #[test]
     fn numbers_constants_functions() {
-        assert_eq!(p(".5 + 1.2e-3 + 2E1").rhs.eval(&[], &[]), 0.5 + 1.2e-3 + 20.0);
+        assert_eq!(
+            p(".5 + 1.2e-3 + 2E1").rhs.eval(&[], &[]),
+            0.5 + 1.2e-3 + 20.0
+        );
         assert!((p("cos(pi) + ln(e)").rhs.eval(&[], &[]) - 0.0).abs() < 1e-15);
         let f = p("log(y) = b1 - b2*x1*exp(-b3*x2)");
         assert!(f.lhs.is_some());
