@@ -19,6 +19,8 @@ pub struct StrdProblem {
     pub starts: [Vec<f64>; 2],
     /// Certified parameter values (11 significant digits).
     pub certified: Vec<f64>,
+    /// Certified standard deviations of the parameters.
+    pub certified_sd: Vec<f64>,
     /// Certified residual sum of squares.
     pub certified_ssr: f64,
 }
@@ -97,13 +99,18 @@ fn numbers(line: &str) -> Vec<f64> {
         .collect()
 }
 
-/// Parses one StRD file.
+/// Reads and parses one StRD file from the reference directory.
 pub fn load(name: &str) -> Option<StrdProblem> {
     let path = strd_dir()?.join(format!("{}.dat", name));
-    let text = std::fs::read_to_string(&path).ok()?;
+    parse(name, &std::fs::read_to_string(path).ok()?)
+}
+
+/// Parses the text of one StRD file.
+pub fn parse(name: &str, text: &str) -> Option<StrdProblem> {
     let lines: Vec<&str> = text.lines().collect();
     let mut starts = [Vec::new(), Vec::new()];
     let mut certified = Vec::new();
+    let mut certified_sd = Vec::new();
     let mut certified_ssr = f64::NAN;
     for l in &lines {
         let t = l.trim_start();
@@ -114,6 +121,7 @@ pub fn load(name: &str) -> Option<StrdProblem> {
                 starts[0].push(v[0]);
                 starts[1].push(v[1]);
                 certified.push(v[2]);
+                certified_sd.push(v[3]);
             }
         } else if t.starts_with("Residual Sum of Squares:") {
             certified_ssr = numbers(t).first().copied().unwrap_or(f64::NAN);
@@ -148,6 +156,7 @@ pub fn load(name: &str) -> Option<StrdProblem> {
         values,
         starts,
         certified,
+        certified_sd,
         certified_ssr,
     })
 }
