@@ -29,14 +29,19 @@ pub fn saturation_survey() -> Vec<Panel> {
     let mut p = Vec::new();
     for log_x in [false, true] {
         let xl = "substrate x";
-        let suffix = if log_x { " against log x" } else { " against x" };
+        let suffix = if log_x {
+            " against log x"
+        } else {
+            " against x"
+        };
         let mut a = Panel::new(&format!("y{suffix}"), xl, "y");
         a.log_x = log_x;
         a.points = map(|y| y);
         a.hlines.push((4.93, "plateau 4.93".into()));
         a.markers.push((2.1, 2.47, "half height x≈2.1".into()));
         if !log_x {
-            a.segments.push(((0.0, 0.05), (1.6, 2.9), "initial slope 1.78".into()));
+            a.segments
+                .push(((0.0, 0.05), (1.6, 2.9), "initial slope 1.78".into()));
         }
         let mut b = Panel::new(&format!("1/y{suffix}"), xl, "1/y");
         b.log_x = log_x;
@@ -47,7 +52,8 @@ pub fn saturation_survey() -> Vec<Panel> {
         c.log_x = log_x;
         c.points = map(|y| if y > 0.0 { y.ln() } else { f64::NAN });
         if log_x {
-            c.segments.push(((0.8, 0.7), (3.2, 1.3), "slope 0.98 per decade".into()));
+            c.segments
+                .push(((0.8, 0.37), (3.2, 1.15), "slope 1.3 per decade".into()));
         }
         c.hlines.push((1.6, "plateau ln 4.95".into()));
         p.extend([a, b, c]);

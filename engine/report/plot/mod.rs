@@ -60,23 +60,43 @@ impl FitSheet {
     /// residuals against fitted values.
     pub fn panels(&self) -> [Panel; 3] {
         let residuals: Vec<f64> = if self.residuals.is_empty() {
-            self.y.iter().zip(&self.fitted).map(|(y, f)| y - f).collect()
+            self.y
+                .iter()
+                .zip(&self.fitted)
+                .map(|(y, f)| y - f)
+                .collect()
         } else {
             self.residuals.clone()
         };
         let mut data = Panel::new(&self.title, &self.x_label, &self.y_label);
         data.points = self.x.iter().copied().zip(self.y.iter().copied()).collect();
         if !self.start_curve.is_empty() {
-            data.dashed_curves.push((self.start_curve.clone(), "starting curve".into()));
+            data.dashed_curves
+                .push((self.start_curve.clone(), "starting curve".into()));
         }
         if !self.fitted_curve.is_empty() {
-            data.curves.push((self.fitted_curve.clone(), "fitted curve".into()));
+            data.curves
+                .push((self.fitted_curve.clone(), "fitted curve".into()));
         }
         let mut by_x = Panel::new("Residuals against x", &self.x_label, "residual");
-        by_x.points = self.x.iter().copied().zip(residuals.iter().copied()).collect();
+        by_x.points = self
+            .x
+            .iter()
+            .copied()
+            .zip(residuals.iter().copied())
+            .collect();
         by_x.hlines.push((0.0, String::new()));
-        let mut by_fit = Panel::new("Residuals against fitted values", "fitted value", "residual");
-        by_fit.points = self.fitted.iter().copied().zip(residuals.iter().copied()).collect();
+        let mut by_fit = Panel::new(
+            "Residuals against fitted values",
+            "fitted value",
+            "residual",
+        );
+        by_fit.points = self
+            .fitted
+            .iter()
+            .copied()
+            .zip(residuals.iter().copied())
+            .collect();
         by_fit.hlines.push((0.0, String::new()));
         [data, by_x, by_fit]
     }
@@ -91,7 +111,10 @@ fn survey_size(n: usize) -> (u32, u32) {
 
 /// Lays the panels out three to a row (the first row against x, the second
 /// against log x for the usual six views).
-fn draw_survey<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, panels: &[Panel]) -> Result<(), String> {
+fn draw_survey<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    panels: &[Panel],
+) -> Result<(), String> {
     root.fill(&WHITE).map_err(|e| format!("{e:?}"))?;
     let rows = panels.len().div_ceil(SURVEY_COLUMNS).max(1);
     let cols = panels.len().clamp(1, SURVEY_COLUMNS);
@@ -103,7 +126,10 @@ fn draw_survey<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, panels: &[Pane
 }
 
 /// Data panel across the top, the two residual panels side by side below.
-fn draw_fit<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, sheet: &FitSheet) -> Result<(), String> {
+fn draw_fit<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    sheet: &FitSheet,
+) -> Result<(), String> {
     root.fill(&WHITE).map_err(|e| format!("{e:?}"))?;
     let [data, by_x, by_fit] = sheet.panels();
     let (_, h) = root.dim_in_pixel();
@@ -195,7 +221,9 @@ pub fn survey_sheet_svg(panels: &[Panel]) -> String {
 
 /// Survey sheet written as a PNG file at `path` (parent directory must exist).
 pub fn survey_sheet_png(panels: &[Panel], path: &Path) -> Result<(), PlotError> {
-    png_of(survey_size(panels.len()), path, |root| draw_survey(root, panels))
+    png_of(survey_size(panels.len()), path, |root| {
+        draw_survey(root, panels)
+    })
 }
 
 /// Fit sheet as SVG: data with the starting curve (dashed) and the fitted

@@ -63,19 +63,29 @@ fn awkward_values_do_not_panic() {
         vec![],
     ];
     for pts in cases {
-        let finite = pts.iter().filter(|(x, y)| x.is_finite() && y.is_finite()).count();
+        let finite = pts
+            .iter()
+            .filter(|(x, y)| x.is_finite() && y.is_finite())
+            .count();
         let mut p = Panel::new("awkward", "x", "y");
         p.points = pts.clone();
         p.hlines = vec![(f64::NAN, "nan".into()), (1e300, "far".into())];
         p.markers = vec![(f64::INFINITY, 0.0, "inf".into())];
         p.segments = vec![((f64::NAN, 0.0), (1.0, 1.0), "bad".into())];
-        p.curves = vec![(vec![(0.0, f64::NAN), (1.0, 1.0), (2.0, f64::INFINITY)], "c".into())];
+        p.curves = vec![(
+            vec![(0.0, f64::NAN), (1.0, 1.0), (2.0, f64::INFINITY)],
+            "c".into(),
+        )];
         let mut q = p.clone();
         q.log_x = true;
         let svg = survey_sheet_svg(&[p, q.clone()]);
         assert!(svg.starts_with("<svg"));
         assert!(!svg.contains("plot unavailable"), "{pts:?}: {svg}");
-        assert_eq!(count(&svg, "<circle"), finite + q.drawable_points(), "{pts:?}");
+        assert_eq!(
+            count(&svg, "<circle"),
+            finite + q.drawable_points(),
+            "{pts:?}"
+        );
     }
 }
 
@@ -84,7 +94,11 @@ fn fit_svg_has_three_panels_and_all_points() {
     let sheet = saturation_fit();
     let svg = fit_sheet_svg(&sheet);
     assert!(svg.starts_with("<svg"));
-    for t in ["Fit of y", "Residuals against x", "Residuals against fitted values"] {
+    for t in [
+        "Fit of y",
+        "Residuals against x",
+        "Residuals against fitted values",
+    ] {
         assert!(svg.contains(t), "missing {t}");
     }
     assert!(svg.contains("starting curve") && svg.contains("fitted curve"));
@@ -97,11 +111,18 @@ fn survey_and_fit_png_are_written() {
     let dir = check_dir();
     let survey = dir.join("survey.png");
     survey_sheet_png(&saturation_survey(), &survey).expect("survey png");
-    assert!(png_ok(&survey) > 20_000, "a 1560×840 sheet with text is not tiny");
+    assert!(
+        png_ok(&survey) > 20_000,
+        "a 1560×840 sheet with text is not tiny"
+    );
     let fit = dir.join("fit.png");
     fit_sheet_png(&saturation_fit(), &fit).expect("fit png");
     assert!(png_ok(&fit) > 20_000);
-    std::fs::write(dir.join("survey.svg"), survey_sheet_svg(&saturation_survey())).expect("svg");
+    std::fs::write(
+        dir.join("survey.svg"),
+        survey_sheet_svg(&saturation_survey()),
+    )
+    .expect("svg");
 }
 
 #[test]
