@@ -167,7 +167,7 @@ dl.facts { display: grid; grid-template-columns: max-content 1fr; gap: .25rem 1.
 dl.facts dt { color: var(--muted); }
 dl.facts dd { margin: 0; }
 .empty { color: var(--muted); font-style: italic; }
-figure { margin: .5rem 0 1rem; }
+figure { margin: .5rem 0 1rem; width: min(1400px, calc(100vw - 3rem)); position: relative; left: 50%; transform: translateX(-50%); }
 figure svg { display: block; width: 100%; height: auto; border: 1px solid var(--rule); }
 figcaption { color: var(--muted); font-size: .9rem; margin-top: .3rem; }
 ul.warnings li { margin: .2rem 0; }
@@ -177,6 +177,7 @@ ul.warnings li { margin: .2rem 0; }
   main { max-width: none; padding: 0; }
   h2 { break-after: avoid; }
   table, figure, .caution { break-inside: avoid; }
+  figure { width: 100%; left: 0; transform: none; }
   tbody tr:nth-child(even) td { background: none; }
 }
 "#;

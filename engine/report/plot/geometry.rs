@@ -42,7 +42,8 @@ pub fn padded(lo: f64, hi: f64) -> Span {
     let (lo, hi) = if lo <= hi { (lo, hi) } else { (hi, lo) };
     let mid = lo / 2.0 + hi / 2.0;
     let span = hi - lo;
-    let (lo, hi) = if !(span > mid.abs() * 1e-9) || span <= 1e-280 {
+    let degenerate = span.partial_cmp(&(mid.abs() * 1e-9)) != Some(std::cmp::Ordering::Greater);
+    let (lo, hi) = if degenerate || span <= 1e-280 {
         let pad = (mid.abs() * 0.1).max(1.0);
         (mid - pad, mid + pad)
     } else {

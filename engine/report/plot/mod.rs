@@ -28,7 +28,7 @@ pub enum PlotError {
 /// Columns in a survey sheet (y, 1/y, log y side by side).
 const SURVEY_COLUMNS: usize = 3;
 /// Pixel size of one survey panel.
-const SURVEY_PANEL: (u32, u32) = (520, 420);
+const SURVEY_PANEL: (u32, u32) = (460, 380);
 /// Pixel size of the whole fit sheet.
 const FIT_SIZE: (u32, u32) = (1200, 900);
 

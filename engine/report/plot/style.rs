@@ -50,9 +50,9 @@ pub const GRID: RGBColor = RGBColor(0xE4, 0xE4, 0xE4);
 /// Panel title size in pixels.
 pub const TITLE_PX: u32 = 17;
 /// Axis description size in pixels.
-pub const AXIS_PX: u32 = 14;
+pub const AXIS_PX: u32 = 15;
 /// Tick label and inline label size in pixels.
-pub const LABEL_PX: u32 = 12;
+pub const LABEL_PX: u32 = 13;
 
 /// Formats a tick or label value compactly: at most four significant digits,
 /// scientific notation outside [1e-3, 1e5), no trailing zeros.
