@@ -1,1 +1,4 @@
 //! Output: tables, JSON and other formats, plots and the HTML report.
+
+pub mod html;
+pub mod plot;
