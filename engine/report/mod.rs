@@ -1,1 +1,4 @@
 //! Output: tables, JSON and other formats, plots and the HTML report.
+
+pub mod fit_json;
+pub mod fit_table;
