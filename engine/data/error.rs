@@ -131,20 +131,63 @@ pub enum DataError {
         first: usize,
         second: usize,
     },
-    /// A non-numeric cell in a sheet's data rows.
-    #[error("{path}, sheet '{sheet}', row {row}, column '{column}': {what} '{text}' is not a number{hint}")]
-    TextCell {
-        path: String,
-        sheet: String,
-        row: usize,
-        column: String,
-        what: String,
-        text: String,
-        hint: String,
-    },
+    /// A non-numeric cell in a sheet's data rows (boxed: it is the largest variant).
+    #[error("{0}")]
+    TextCell(Box<SheetCellError>),
     /// `--sheet` given for a text file.
     #[error("--sheet applies to workbooks (.xlsx, .xls, .ods); {path} is read as delimited text")]
     SheetOnText { path: String },
+}
+
+/// Where a workbook cell that is not a number sits, and what it holds.
+#[derive(Debug, Clone, PartialEq, Error)]
+#[error("{path}, sheet '{sheet}', row {row}, column '{column}': {} '{text}' is not a number{}", kind.what(), kind.hint())]
+pub struct SheetCellError {
+    pub path: String,
+    pub sheet: String,
+    /// 1-based row of the sheet.
+    pub row: usize,
+    pub column: String,
+    /// The cell as the workbook shows it.
+    pub text: String,
+    pub kind: CellKind,
+}
+
+/// The kinds of workbook cell that are not numbers.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CellKind {
+    Text,
+    Bool,
+    DateTime,
+    Duration,
+    ErrorValue,
+    NonFinite,
+}
+
+impl CellKind {
+    /// How the message names the cell.
+    pub fn what(self) -> &'static str {
+        match self {
+            CellKind::Text => "the text",
+            CellKind::Bool => "the true/false value",
+            CellKind::DateTime => "the date/time",
+            CellKind::Duration => "the duration",
+            CellKind::ErrorValue => "the error cell",
+            CellKind::NonFinite => "the value",
+        }
+    }
+    /// What to do about it.
+    pub fn hint(self) -> &'static str {
+        match self {
+            CellKind::Text => "; if it is a number stored as text, convert the column to numbers",
+            CellKind::DateTime => {
+                "; convert dates to elapsed time (e.g. hours since the start) in a numeric column"
+            }
+            CellKind::Duration => "; use a numeric column",
+            CellKind::ErrorValue => "; fix the formula in the workbook",
+            CellKind::Bool | CellKind::NonFinite => "",
+        }
+    }
 }
 
 fn semicolon_hint(text: &str) -> &'static str {

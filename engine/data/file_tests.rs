@@ -243,9 +243,12 @@ fn workbook_text_cell_names_sheet_row_and_column() {
     );
     let e = read(f.path()).unwrap_err();
     assert!(
-        matches!(&e, DataError::TextCell { sheet, row: 3, column, text, .. }
-            if sheet == "Data" && column == "y" && text == "high"),
+        matches!(&e, DataError::TextCell(c) if c.sheet == "Data" && c.row == 3 && c.column == "y" && c.text == "high"),
         "{e:?}"
+    );
+    assert_eq!(
+        e.to_string(),
+        format!("{}, sheet 'Data', row 3, column 'y': the text 'high' is not a number; if it is a number stored as text, convert the column to numbers", f.path())
     );
 }
 

@@ -13,7 +13,7 @@ mod select;
 mod workbook;
 
 pub use delimited::parse_delimited;
-pub use error::DataError;
+pub use error::{CellKind, DataError, SheetCellError};
 pub use limits::{MAX_CELLS, MAX_INPUT_BYTES};
 pub use workbook::WORKBOOK_EXTENSIONS;
 

@@ -2,6 +2,7 @@
 //! `calamine` crate: the first non-empty row of the chosen sheet is the
 //! header; data cells must be numbers; empty cells are missing (NaN).
 
+use super::error::{CellKind, SheetCellError};
 use super::{DataError, Dataset, ReadOptions};
 use calamine::{open_workbook_auto, Data, Reader};
 
@@ -129,17 +130,16 @@ fn table_from_rows(
     for (row, cells) in &rows[1..] {
         for ((j, name), col) in keep.iter().zip(values.iter_mut()) {
             let cell = cells.get(*j).unwrap_or(&Data::Empty);
-            col.push(
-                cell_value(cell).map_err(|(what, hint)| DataError::TextCell {
+            col.push(cell_value(cell).map_err(|kind| {
+                DataError::TextCell(Box::new(SheetCellError {
                     path: path.to_string(),
                     sheet: sheet.to_string(),
                     row: *row,
                     column: name.clone(),
-                    what: what.to_string(),
                     text: cell.to_string(),
-                    hint: hint.to_string(),
-                })?,
-            );
+                    kind,
+                }))
+            })?);
         }
     }
     Ok(Dataset {
@@ -157,25 +157,19 @@ fn header_name(d: &Data) -> String {
     }
 }
 
-/// A data cell's number (NaN when empty), or what kind of cell it is and a hint.
-fn cell_value(d: &Data) -> Result<f64, (&'static str, &'static str)> {
+/// A data cell's number (NaN when empty), or the kind of cell that is not a number.
+fn cell_value(d: &Data) -> Result<f64, CellKind> {
     match d {
         Data::Empty => Ok(f64::NAN),
         Data::Float(v) if v.is_finite() => Ok(*v),
-        Data::Float(_) => Err(("the value", "")),
+        Data::Float(_) => Err(CellKind::NonFinite),
         Data::Int(v) => Ok(*v as f64),
         Data::String(s) if s.trim().is_empty() => Ok(f64::NAN),
-        Data::String(_) => Err((
-            "the text",
-            "; if it is a number stored as text, convert the column to numbers",
-        )),
-        Data::Bool(_) => Err(("the true/false value", "")),
-        Data::DateTime(_) | Data::DateTimeIso(_) => Err((
-            "the date/time",
-            "; convert dates to elapsed time (e.g. hours since the start) in a numeric column",
-        )),
-        Data::DurationIso(_) => Err(("the duration", "; use a numeric column")),
-        Data::Error(_) => Err(("the error cell", "; fix the formula in the workbook")),
+        Data::String(_) => Err(CellKind::Text),
+        Data::Bool(_) => Err(CellKind::Bool),
+        Data::DateTime(_) | Data::DateTimeIso(_) => Err(CellKind::DateTime),
+        Data::DurationIso(_) => Err(CellKind::Duration),
+        Data::Error(_) => Err(CellKind::ErrorValue),
     }
 }
 
@@ -245,7 +239,7 @@ mod tests {
             .collect();
         let e = table_from_rows("b.xlsx", "S", &rows).unwrap_err();
         assert!(
-            matches!(&e, DataError::TextCell { row: 4, column, text, .. } if column == "y" && text == "n/a")
+            matches!(&e, DataError::TextCell(c) if c.row == 4 && c.column == "y" && c.text == "n/a" && c.kind == CellKind::Text)
         );
         assert!(
             e.to_string().starts_with(
