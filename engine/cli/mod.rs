@@ -1,7 +1,165 @@
-//! The command line: argument parsing, and the one place errors are rendered.
+//! The command line: argument parsing, the subcommands, and the one place
+//! errors are rendered (`foothold: error: <message>` on stderr) and exit codes chosen.
+//!
+//! Exit codes: 0 success; 1 the fit did not converge; 2 bad input or usage.
 
-/// Runs the command line and returns the process exit code.
+pub mod args;
+pub mod fit_cmd;
+pub mod starts;
+
+use args::{Cli, Command};
+use clap::error::ErrorKind;
+use clap::Parser;
+use std::ffi::OsString;
+use std::io::Write;
+
+/// Exit code: success.
+pub const EXIT_OK: i32 = 0;
+/// Exit code: the fit ran but did not converge.
+pub const EXIT_NOT_CONVERGED: i32 = 1;
+/// Exit code: bad input or usage.
+pub const EXIT_USAGE: i32 = 2;
+
+/// How a command that ran without error ended.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Outcome {
+    /// Done; exit 0.
+    Success,
+    /// The fit stopped without converging; the message explains, exit 1.
+    NotConverged(String),
+}
+
+/// Runs the command line of this process and returns the exit code.
 pub fn run() -> i32 {
-    eprintln!("foothold: not yet implemented");
-    2
+    let stdout = std::io::stdout();
+    let stderr = std::io::stderr();
+    run_from(std::env::args_os(), &mut stdout.lock(), &mut stderr.lock())
+}
+
+/// Runs a command line (`args[0]` is the program name) with the given
+/// output streams and returns the exit code.
+pub fn run_from<I, T>(args: I, out: &mut dyn Write, err: &mut dyn Write) -> i32
+where
+    I: IntoIterator<Item = T>,
+    T: Into<OsString> + Clone,
+{
+    let cli = match Cli::try_parse_from(args) {
+        Ok(c) => c,
+        Err(e) => return clap_exit(e, out, err),
+    };
+    let result = match &cli.command {
+        Command::Fit(a) => fit_cmd::run_fit(a, out, err),
+        Command::Infer(_) => not_yet("infer"),
+        Command::Rank(_) => not_yet("rank"),
+        Command::Report(_) => not_yet("report"),
+        Command::Models(_) => not_yet("models"),
+    };
+    match result {
+        Ok(Outcome::Success) => EXIT_OK,
+        Ok(Outcome::NotConverged(msg)) => {
+            let _ = writeln!(err, "foothold: error: {msg}");
+            EXIT_NOT_CONVERGED
+        }
+        Err(e) => {
+            let _ = writeln!(err, "foothold: error: {e}");
+            EXIT_USAGE
+        }
+    }
+}
+
+fn not_yet(command: &str) -> Result<Outcome, crate::error::Error> {
+    Err(crate::error::Error::Usage(format!(
+        "'{command}' is not available yet; use 'foothold fit' with --start for now"
+    )))
+}
+
+/// Help and version go to `out` with exit 0; usage errors to `err` with exit 2.
+fn clap_exit(e: clap::Error, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
+    let text = e.render().to_string();
+    match e.kind() {
+        ErrorKind::DisplayHelp | ErrorKind::DisplayVersion => {
+            let _ = out.write_all(text.as_bytes());
+            EXIT_OK
+        }
+        ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
+            let _ = err.write_all(text.as_bytes());
+            EXIT_USAGE
+        }
+        _ => {
+            let body = text.strip_prefix("error: ").unwrap_or(&text);
+            let _ = write!(err, "foothold: error: {body}");
+            if !body.ends_with('\n') {
+                let _ = writeln!(err);
+            }
+            EXIT_USAGE
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn run_args(args: &[&str]) -> (i32, String, String) {
+        let (mut out, mut err) = (Vec::new(), Vec::new());
+        let code = run_from(
+            std::iter::once("foothold").chain(args.iter().copied()),
+            &mut out,
+            &mut err,
+        );
+        (
+            code,
+            String::from_utf8_lossy(&out).into_owned(),
+            String::from_utf8_lossy(&err).into_owned(),
+        )
+    }
+
+    #[test]
+    fn help_and_version_exit_zero() {
+        let (code, out, _) = run_args(&["--help"]);
+        assert_eq!(code, 0);
+        assert!(out.contains("fit") && out.contains("infer"), "{out}");
+        let (code, out, _) = run_args(&["fit", "--help"]);
+        assert_eq!(code, 0);
+        assert!(out.contains("--start") && out.contains("--sheet"), "{out}");
+        let (code, out, _) = run_args(&["--version"]);
+        assert_eq!(code, 0);
+        assert!(out.starts_with("foothold "), "{out}");
+    }
+
+    #[test]
+    fn usage_errors_exit_two_with_one_prefix() {
+        let (code, _, err) = run_args(&[]);
+        assert_eq!(code, 2);
+        assert!(err.contains("Usage: foothold <COMMAND>"), "{err}");
+        for args in [
+            vec!["fly"],
+            vec!["fit"],
+            vec!["fit", "d.csv"],
+            vec!["fit", "d.csv", "--model", "a*x", "--format", "xml"],
+        ] {
+            let (code, _, err) = run_args(&args);
+            assert_eq!(code, 2, "{args:?}");
+            assert!(err.starts_with("foothold: error: "), "{args:?}: {err}");
+            assert!(!err.contains("error: error"), "{err}");
+        }
+    }
+
+    #[test]
+    fn later_commands_are_not_available_yet() {
+        for args in [
+            vec!["infer", "d.csv", "--model", "a*x"],
+            vec![
+                "rank", "d.csv", "--model", "a*x", "--starts", "50", "--seed", "7", "--top", "3",
+            ],
+            vec![
+                "report", "d.csv", "--model", "a*x", "--out", "r.html", "--by", "batch",
+            ],
+            vec!["models"],
+        ] {
+            let (code, _, err) = run_args(&args);
+            assert_eq!(code, 2, "{args:?}");
+            assert!(err.contains("is not available yet"), "{args:?}: {err}");
+        }
+    }
 }

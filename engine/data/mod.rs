@@ -1,14 +1,28 @@
-//! Reading tables into named numeric columns: delimited text (comma, tab,
-//! whitespace) with a header.
+//! Reading tables into named numeric columns: delimited text (comma, tab or
+//! runs of whitespace) with a header, and spreadsheet workbooks (.xlsx, .xls,
+//! .xlsm, .xlsb, .ods). Empty cells are *missing* (NaN in [`Dataset::values`]);
+//! the model decides which columns matter and [`Dataset::select`] drops the
+//! incomplete rows.
 
-use thiserror::Error;
+mod delimited;
+mod error;
+#[cfg(test)]
+mod file_tests;
+mod limits;
+mod select;
+mod workbook;
+
+pub use delimited::parse_delimited;
+pub use error::{CellKind, DataError, SheetCellError};
+pub use limits::{MAX_CELLS, MAX_INPUT_BYTES};
+pub use workbook::WORKBOOK_EXTENSIONS;
 
 /// A table of numeric columns, column-major.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Dataset {
     /// Column names from the header, in file order.
     pub columns: Vec<String>,
-    /// `values[j][i]`: row i of column j. All columns have the same length.
+    /// `values[j][i]`: row i of column j. All columns have the same length. NaN = missing cell.
     pub values: Vec<Vec<f64>>,
     /// Where the data came from (a path, or a label).
     pub source: String,
@@ -19,19 +33,61 @@ pub struct Dataset {
 impl Dataset {
     /// The column with this name.
     pub fn column(&self, name: &str) -> Option<&[f64]> {
-        self.columns.iter().position(|c| c == name).map(|j| self.values[j].as_slice())
+        self.columns
+            .iter()
+            .position(|c| c == name)
+            .and_then(|j| self.values.get(j))
+            .map(|c| c.as_slice())
     }
     /// Number of rows.
     pub fn n_rows(&self) -> usize {
         self.values.first().map(|c| c.len()).unwrap_or(0)
     }
+    /// True when the table has a column of this name.
+    pub fn has_column(&self, name: &str) -> bool {
+        self.columns.iter().any(|c| c == name)
+    }
 }
 
-/// What is wrong with an input table, and where.
-#[derive(Debug, Clone, PartialEq, Error)]
-pub enum DataError {
-    #[error("cannot read {path}: {reason}")]
-    Io { path: String, reason: String },
-    #[error("{path} is empty")]
-    Empty { path: String },
+/// How to read an input: which sheet of a workbook, and the size limits.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReadOptions {
+    /// Workbook sheet by name or 1-based index; `None` = the first sheet. Ignored for text files.
+    pub sheet: Option<String>,
+    /// Largest input accepted, in bytes.
+    pub max_bytes: u64,
+    /// Largest number of cells (rows × columns) accepted.
+    pub max_cells: usize,
+}
+
+impl Default for ReadOptions {
+    fn default() -> Self {
+        ReadOptions {
+            sheet: None,
+            max_bytes: MAX_INPUT_BYTES,
+            max_cells: MAX_CELLS,
+        }
+    }
+}
+
+/// Reads a table from `path`: `-` is standard input (delimited text); a
+/// workbook extension (see [`WORKBOOK_EXTENSIONS`]) is read as a workbook;
+/// anything else as delimited text.
+pub fn read_table(path: &str, opts: &ReadOptions) -> Result<Dataset, DataError> {
+    if path == "-" {
+        let stdin = std::io::stdin();
+        let text = limits::read_stream(stdin.lock(), "standard input", opts.max_bytes)?;
+        return delimited::parse_delimited_limited(&text, "standard input", opts.max_cells);
+    }
+    limits::check_file(path, opts.max_bytes)?;
+    if workbook::is_workbook_path(path) {
+        return workbook::read_workbook(path, opts);
+    }
+    if opts.sheet.is_some() {
+        return Err(DataError::SheetOnText {
+            path: path.to_string(),
+        });
+    }
+    let text = limits::read_file_text(path, opts.max_bytes)?;
+    delimited::parse_delimited_limited(&text, path, opts.max_cells)
 }

@@ -2,3 +2,5 @@
 
 pub mod html;
 pub mod plot;
+pub mod fit_json;
+pub mod fit_table;

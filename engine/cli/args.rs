@@ -1,0 +1,146 @@
+//! The command line's shape (clap 4 derive): one struct per subcommand, built
+//! from shared groups so that later commands extend them easily.
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use std::path::PathBuf;
+
+/// foothold: starting values for nonlinear regression, ranked multistart, converged fits.
+#[derive(Debug, Parser)]
+#[command(name = "foothold", version, about, max_term_width = 100)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Fit a model to data from given starting values (--start).
+    Fit(FitArgs),
+    /// Work out starting values from the model and the data (not available yet).
+    Infer(InferArgs),
+    /// Rank candidate starts by a multistart search (not available yet).
+    Rank(RankArgs),
+    /// Write a full report of a fit (not available yet).
+    Report(ReportArgs),
+    /// List the models foothold knows by structure (not available yet).
+    Models(ModelsArgs),
+}
+
+/// Where the data is and which model to fit.
+#[derive(Debug, Clone, Args)]
+pub struct InputArgs {
+    /// Data: CSV, tab- or space-separated text with a header line; a workbook
+    /// (.xlsx, .xlsm, .xlsb, .xls, .ods); or - for standard input (text).
+    #[arg(value_name = "DATA")]
+    pub data: String,
+    /// Model formula, e.g. "y = a*exp(-k*x)"; names that are columns are
+    /// variables, all other names are parameters.
+    #[arg(long, short = 'm', value_name = "FORMULA")]
+    pub model: String,
+    /// Response column when the formula has no left-hand side [default: y].
+    #[arg(long = "y", value_name = "COLUMN")]
+    pub y: Option<String>,
+    /// Workbook sheet, by name or 1-based number [default: the first].
+    #[arg(long, value_name = "SHEET")]
+    pub sheet: Option<String>,
+}
+
+/// How results are printed.
+#[derive(Debug, Clone, Args)]
+pub struct OutputArgs {
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Print no warnings (errors are always printed).
+    #[arg(long, short = 'q', conflicts_with = "verbose")]
+    pub quiet: bool,
+    /// Also print details of the run (stop reason, counts, timings) to stderr.
+    #[arg(long, short = 'v')]
+    pub verbose: bool,
+}
+
+/// Output formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// Aligned plain-text table.
+    Table,
+    /// JSON document.
+    Json,
+}
+
+/// Options of the multistart search, shared by `rank` and `report`.
+#[derive(Debug, Clone, Args)]
+pub struct SearchArgs {
+    /// Number of candidate starts to refine.
+    #[arg(long, value_name = "N")]
+    pub starts: Option<usize>,
+    /// Seed of the random draws, for repeatable runs.
+    #[arg(long, value_name = "N")]
+    pub seed: Option<u64>,
+    /// Stop the search after this many seconds.
+    #[arg(long, value_name = "SECONDS")]
+    pub time_limit: Option<f64>,
+    /// Fit each group of rows sharing a value of this column separately.
+    #[arg(long, value_name = "COLUMN")]
+    pub by: Option<String>,
+}
+
+/// `fit`: a local fit from given starting values.
+#[derive(Debug, Clone, Args)]
+pub struct FitArgs {
+    #[command(flatten)]
+    pub input: InputArgs,
+    /// Starting values, NAME=VALUE, comma-separated or repeated; every parameter needs one.
+    #[arg(long, value_name = "NAME=VALUE,...", value_delimiter = ',')]
+    pub start: Vec<String>,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// `infer`: starting values with how each was obtained.
+#[derive(Debug, Clone, Args)]
+pub struct InferArgs {
+    #[command(flatten)]
+    pub input: InputArgs,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// `rank`: candidate starts ranked by a multistart search.
+#[derive(Debug, Clone, Args)]
+pub struct RankArgs {
+    #[command(flatten)]
+    pub input: InputArgs,
+    #[command(flatten)]
+    pub search: SearchArgs,
+    /// Show the best N distinct minima.
+    #[arg(long, value_name = "N")]
+    pub top: Option<usize>,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// `report`: a full report of the fit written to a file.
+#[derive(Debug, Clone, Args)]
+pub struct ReportArgs {
+    #[command(flatten)]
+    pub input: InputArgs,
+    #[command(flatten)]
+    pub search: SearchArgs,
+    /// File to write.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Print no warnings.
+    #[arg(long, short = 'q')]
+    pub quiet: bool,
+}
+
+/// `models`: the model library.
+#[derive(Debug, Clone, Args)]
+pub struct ModelsArgs {
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+}

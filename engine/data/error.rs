@@ -1,0 +1,199 @@
+//! What can be wrong with an input table, and where: every message names the
+//! file and, where there is one, the line (or sheet and row) and the column.
+
+use thiserror::Error;
+
+/// What is wrong with an input table, and where.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum DataError {
+    /// The operating system refused the read.
+    #[error("cannot read {path}: {reason}")]
+    Io { path: String, reason: String },
+    /// No file at that path.
+    #[error("{path}: no such file")]
+    NotFound { path: String },
+    /// The path is a directory.
+    #[error("{path} is a directory, not a data file")]
+    IsDirectory { path: String },
+    /// Nothing but blank lines and comments.
+    #[error("{path} is empty: expected a header line of column names, then rows of numbers")]
+    Empty { path: String },
+    /// A header and no data rows.
+    #[error("{path} has a header but no data rows")]
+    HeaderOnly { path: String },
+    /// NUL bytes or invalid UTF-8: not a text table.
+    #[error("{path} does not look like a text table ({detail}); give a CSV, tab- or space-separated file, or a workbook (.xlsx, .xls, .ods)")]
+    Binary { path: String, detail: String },
+    /// More bytes than the input limit.
+    #[error("{path} is larger than the input limit of {limit} bytes ({} MiB); split or reduce the data", limit / (1024 * 1024))]
+    TooLarge { path: String, limit: u64 },
+    /// More cells than the cell limit.
+    #[error(
+        "{path} has more than {limit} cells (rows × columns), the input limit; reduce the data"
+    )]
+    TooManyCells { path: String, limit: usize },
+    /// The first line holds numbers, not names.
+    #[error("{path}, line {line}: the first line holds numbers, not column names; start the file with a header line such as 'x,y'")]
+    NoHeader { path: String, line: usize },
+    /// A header cell with no name.
+    #[error("{path}, line {line}: column {column} of the header has no name")]
+    EmptyHeaderName {
+        path: String,
+        line: usize,
+        column: usize,
+    },
+    /// The same name twice in the header.
+    #[error(
+        "{path}, line {line}: column name '{name}' appears twice (columns {first} and {second})"
+    )]
+    DuplicateColumn {
+        path: String,
+        line: usize,
+        name: String,
+        first: usize,
+        second: usize,
+    },
+    /// A row with the wrong number of cells.
+    #[error(
+        "{path}, line {line}: expected {expected} cells (one per header column), found {found}"
+    )]
+    Ragged {
+        path: String,
+        line: usize,
+        expected: usize,
+        found: usize,
+    },
+    /// A cell that is not a number.
+    #[error(
+        "{path}, line {line}, column '{column}': '{text}' is not a number{}",
+        semicolon_hint(text)
+    )]
+    NotANumber {
+        path: String,
+        line: usize,
+        column: String,
+        text: String,
+    },
+    /// A NaN or infinite cell (literal, or a number too large for f64).
+    #[error("{path}, line {line}, column '{column}': '{text}' is not a finite number; leave the cell empty to mark a missing value")]
+    NonFinite {
+        path: String,
+        line: usize,
+        column: String,
+        text: String,
+    },
+    /// A quoted cell with no closing quote.
+    #[error("{path}, line {line}: a quoted cell has no closing quote")]
+    UnterminatedQuote { path: String, line: usize },
+    /// A column name asked for that the table does not have.
+    #[error("column '{name}' is not in {path} (columns: {available})")]
+    UnknownColumn {
+        path: String,
+        name: String,
+        available: String,
+    },
+    /// Every row has a missing cell in the columns the model needs.
+    #[error("{path}: no row has values in all of {columns}; every row has an empty cell there")]
+    NoCompleteRows { path: String, columns: String },
+    /// The workbook could not be opened or read.
+    #[error("cannot read workbook {path}: {reason}")]
+    Workbook { path: String, reason: String },
+    /// `--sheet` names no sheet of the workbook.
+    #[error(
+        "{path} has no sheet '{sheet}' (sheets: {available}); give a name or a 1-based number"
+    )]
+    NoSuchSheet {
+        path: String,
+        sheet: String,
+        available: String,
+    },
+    /// A sheet with no cells.
+    #[error("{path}, sheet '{sheet}' is empty: expected a header row of column names, then rows of numbers")]
+    EmptySheet { path: String, sheet: String },
+    /// A sheet with a header row and no data.
+    #[error("{path}, sheet '{sheet}' has a header row but no data rows")]
+    HeaderOnlySheet { path: String, sheet: String },
+    /// A header cell of a sheet with no name.
+    #[error("{path}, sheet '{sheet}', row {row}: column {column} of the header has no name")]
+    EmptySheetHeaderName {
+        path: String,
+        sheet: String,
+        row: usize,
+        column: usize,
+    },
+    /// The same name twice in a sheet's header row.
+    #[error("{path}, sheet '{sheet}', row {row}: column name '{name}' appears twice (columns {first} and {second})")]
+    DuplicateSheetColumn {
+        path: String,
+        sheet: String,
+        row: usize,
+        name: String,
+        first: usize,
+        second: usize,
+    },
+    /// A non-numeric cell in a sheet's data rows (boxed: it is the largest variant).
+    #[error("{0}")]
+    TextCell(Box<SheetCellError>),
+    /// `--sheet` given for a text file.
+    #[error("--sheet applies to workbooks (.xlsx, .xls, .ods); {path} is read as delimited text")]
+    SheetOnText { path: String },
+}
+
+/// Where a workbook cell that is not a number sits, and what it holds.
+#[derive(Debug, Clone, PartialEq, Error)]
+#[error("{path}, sheet '{sheet}', row {row}, column '{column}': {} '{text}' is not a number{}", kind.what(), kind.hint())]
+pub struct SheetCellError {
+    pub path: String,
+    pub sheet: String,
+    /// 1-based row of the sheet.
+    pub row: usize,
+    pub column: String,
+    /// The cell as the workbook shows it.
+    pub text: String,
+    pub kind: CellKind,
+}
+
+/// The kinds of workbook cell that are not numbers.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CellKind {
+    Text,
+    Bool,
+    DateTime,
+    Duration,
+    ErrorValue,
+    NonFinite,
+}
+
+impl CellKind {
+    /// How the message names the cell.
+    pub fn what(self) -> &'static str {
+        match self {
+            CellKind::Text => "the text",
+            CellKind::Bool => "the true/false value",
+            CellKind::DateTime => "the date/time",
+            CellKind::Duration => "the duration",
+            CellKind::ErrorValue => "the error cell",
+            CellKind::NonFinite => "the value",
+        }
+    }
+    /// What to do about it.
+    pub fn hint(self) -> &'static str {
+        match self {
+            CellKind::Text => "; if it is a number stored as text, convert the column to numbers",
+            CellKind::DateTime => {
+                "; convert dates to elapsed time (e.g. hours since the start) in a numeric column"
+            }
+            CellKind::Duration => "; use a numeric column",
+            CellKind::ErrorValue => "; fix the formula in the workbook",
+            CellKind::Bool | CellKind::NonFinite => "",
+        }
+    }
+}
+
+fn semicolon_hint(text: &str) -> &'static str {
+    if text.contains(';') {
+        "; separate cells with commas, tabs or spaces (semicolons are not a separator)"
+    } else {
+        ""
+    }
+}

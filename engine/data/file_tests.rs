@@ -1,0 +1,267 @@
+//! Reading real files: missing, directories, limits, binary content, text
+//! with each separator, and workbooks written in the test.
+
+use super::*;
+use std::io::Write;
+use std::path::PathBuf;
+
+/// A fresh file in the system temp directory, removed when dropped.
+struct TempFile(PathBuf);
+
+impl TempFile {
+    fn new(name: &str, bytes: &[u8]) -> TempFile {
+        let dir = std::env::temp_dir().join(format!(
+            "foothold-data-{}-{}",
+            std::process::id(),
+            name.replace('.', "_")
+        ));
+        let _ = std::fs::create_dir_all(&dir);
+        let path = dir.join(name);
+        std::fs::write(&path, bytes).unwrap();
+        TempFile(path)
+    }
+    fn path(&self) -> &str {
+        self.0.to_str().unwrap()
+    }
+}
+
+impl Drop for TempFile {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_file(&self.0);
+        if let Some(d) = self.0.parent() {
+            let _ = std::fs::remove_dir(d);
+        }
+    }
+}
+
+fn read(path: &str) -> Result<Dataset, DataError> {
+    read_table(path, &ReadOptions::default())
+}
+
+#[test]
+fn reads_each_separator_from_files() {
+    for (name, text) in [
+        ("comma.csv", "t,y\n0,1.5\n1,2.5\n"),
+        ("tab.tsv", "t\ty\n0\t1.5\n1\t2.5\n"),
+        ("space.txt", "t y\n0   1.5\n 1 2.5\n"),
+    ] {
+        let f = TempFile::new(name, text.as_bytes());
+        let d = read(f.path()).unwrap();
+        assert_eq!(d.columns, vec!["t", "y"], "{name}");
+        assert_eq!(d.values, vec![vec![0.0, 1.0], vec![1.5, 2.5]], "{name}");
+        assert_eq!(d.source, f.path());
+    }
+}
+
+#[test]
+fn missing_file_and_directory() {
+    let missing = std::env::temp_dir().join("foothold-surely-not-here-4711.csv");
+    let p = missing.to_str().unwrap();
+    assert_eq!(read(p).unwrap_err(), DataError::NotFound { path: p.into() });
+    let f = TempFile::new("d.csv", b"x,y\n1,2\n");
+    let dir = f.0.parent().unwrap().to_str().unwrap().to_string();
+    assert_eq!(
+        read(&dir).unwrap_err(),
+        DataError::IsDirectory { path: dir.clone() }
+    );
+}
+
+#[test]
+fn empty_binary_and_oversized_files() {
+    let f = TempFile::new("empty.csv", b"");
+    assert!(matches!(
+        read(f.path()).unwrap_err(),
+        DataError::Empty { .. }
+    ));
+    let f = TempFile::new("bin.csv", b"x,y\n\x00\x01\x02");
+    assert!(matches!(
+        read(f.path()).unwrap_err(),
+        DataError::Binary { .. }
+    ));
+    let f = TempFile::new("latin1.csv", b"x,\xe9t\xe9\n1,2\n");
+    let e = read(f.path()).unwrap_err();
+    assert!(e.to_string().contains("invalid UTF-8 at byte 3"), "{e}");
+    let f = TempFile::new("big.csv", b"x,y\n1,2\n3,4\n");
+    let opts = ReadOptions {
+        max_bytes: 8,
+        ..ReadOptions::default()
+    };
+    assert_eq!(
+        read_table(f.path(), &opts).unwrap_err(),
+        DataError::TooLarge {
+            path: f.path().into(),
+            limit: 8
+        }
+    );
+}
+
+#[test]
+fn sheet_option_on_text_is_refused() {
+    let f = TempFile::new("s.csv", b"x,y\n1,2\n");
+    let opts = ReadOptions {
+        sheet: Some("2".into()),
+        ..ReadOptions::default()
+    };
+    assert!(matches!(
+        read_table(f.path(), &opts).unwrap_err(),
+        DataError::SheetOnText { .. }
+    ));
+}
+
+/// Writes a minimal .xlsx with the given sheets; each sheet is rows of cells,
+/// a cell being `Some(text)` (a number if it parses, else inline text) or `None`.
+fn write_xlsx(name: &str, sheets: &[(&str, Vec<Vec<Option<&str>>>)]) -> TempFile {
+    use zip::write::SimpleFileOptions;
+    let mut buf = std::io::Cursor::new(Vec::new());
+    {
+        let mut z = zip::ZipWriter::new(&mut buf);
+        let o = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+        let mut ct = String::from(
+            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"><Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/><Default Extension="xml" ContentType="application/xml"/><Override PartName="/xl/workbook.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet.main+xml"/>"#,
+        );
+        let mut wb = String::from(
+            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets>"#,
+        );
+        let mut rels = String::from(
+            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">"#,
+        );
+        for (k, (sheet, rows)) in sheets.iter().enumerate() {
+            let n = k + 1;
+            ct += &format!(
+                r#"<Override PartName="/xl/worksheets/sheet{n}.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.worksheet+xml"/>"#
+            );
+            wb += &format!(r#"<sheet name="{sheet}" sheetId="{n}" r:id="rId{n}"/>"#);
+            rels += &format!(
+                r#"<Relationship Id="rId{n}" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet{n}.xml"/>"#
+            );
+            let mut xml = String::from(
+                r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>"#,
+            );
+            for (i, row) in rows.iter().enumerate() {
+                let r = i + 1;
+                xml += &format!(r#"<row r="{r}">"#);
+                for (j, cell) in row.iter().enumerate() {
+                    let col = (b'A' + j as u8) as char;
+                    match cell {
+                        None => {}
+                        Some(t) if t.parse::<f64>().is_ok() => {
+                            xml += &format!(r#"<c r="{col}{r}"><v>{t}</v></c>"#)
+                        }
+                        Some(t) => {
+                            xml +=
+                                &format!(r#"<c r="{col}{r}" t="inlineStr"><is><t>{t}</t></is></c>"#)
+                        }
+                    }
+                }
+                xml += "</row>";
+            }
+            xml += "</sheetData></worksheet>";
+            z.start_file(format!("xl/worksheets/sheet{n}.xml"), o)
+                .unwrap();
+            z.write_all(xml.as_bytes()).unwrap();
+        }
+        ct += "</Types>";
+        wb += "</sheets></workbook>";
+        rels += "</Relationships>";
+        z.start_file("[Content_Types].xml", o).unwrap();
+        z.write_all(ct.as_bytes()).unwrap();
+        z.start_file("_rels/.rels", o).unwrap();
+        z.write_all(br#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/officeDocument" Target="xl/workbook.xml"/></Relationships>"#).unwrap();
+        z.start_file("xl/workbook.xml", o).unwrap();
+        z.write_all(wb.as_bytes()).unwrap();
+        z.start_file("xl/_rels/workbook.xml.rels", o).unwrap();
+        z.write_all(rels.as_bytes()).unwrap();
+        z.finish().unwrap();
+    }
+    TempFile::new(name, &buf.into_inner())
+}
+
+#[test]
+fn reads_workbook_sheets_by_default_name_and_number() {
+    let f = write_xlsx(
+        "book.xlsx",
+        &[
+            (
+                "Run 1",
+                vec![
+                    vec![Some("hours"), Some("mass")],
+                    vec![Some("0"), Some("0.25")],
+                    vec![Some("2"), None],
+                    vec![Some("4"), Some("1.5")],
+                ],
+            ),
+            (
+                "Run 2",
+                vec![
+                    vec![Some("hours"), Some("mass")],
+                    vec![Some("1"), Some("7")],
+                ],
+            ),
+        ],
+    );
+    let d = read(f.path()).unwrap();
+    assert_eq!(d.columns, vec!["hours", "mass"]);
+    assert_eq!(d.values[0], vec![0.0, 2.0, 4.0]);
+    assert_eq!(d.values[1][0], 0.25);
+    assert!(d.values[1][1].is_nan());
+    assert_eq!(d.values[1][2], 1.5);
+    for s in ["Run 2", "2"] {
+        let opts = ReadOptions {
+            sheet: Some(s.into()),
+            ..ReadOptions::default()
+        };
+        let d = read_table(f.path(), &opts).unwrap();
+        assert_eq!(d.values, vec![vec![1.0], vec![7.0]], "sheet {s}");
+    }
+    let opts = ReadOptions {
+        sheet: Some("Run 3".into()),
+        ..ReadOptions::default()
+    };
+    let e = read_table(f.path(), &opts).unwrap_err();
+    assert_eq!(
+        e,
+        DataError::NoSuchSheet {
+            path: f.path().into(),
+            sheet: "Run 3".into(),
+            available: "Run 1, Run 2".into()
+        }
+    );
+}
+
+#[test]
+fn workbook_text_cell_names_sheet_row_and_column() {
+    let f = write_xlsx(
+        "text.xlsx",
+        &[(
+            "Data",
+            vec![
+                vec![Some("x"), Some("y")],
+                vec![Some("1"), Some("2")],
+                vec![Some("2"), Some("high")],
+            ],
+        )],
+    );
+    let e = read(f.path()).unwrap_err();
+    assert!(
+        matches!(&e, DataError::TextCell(c) if c.sheet == "Data" && c.row == 3 && c.column == "y" && c.text == "high"),
+        "{e:?}"
+    );
+    assert_eq!(
+        e.to_string(),
+        format!("{}, sheet 'Data', row 3, column 'y': the text 'high' is not a number; if it is a number stored as text, convert the column to numbers", f.path())
+    );
+}
+
+#[test]
+fn broken_workbook_is_a_workbook_error() {
+    let f = TempFile::new("broken.xlsx", b"this is not a zip archive");
+    assert!(matches!(
+        read(f.path()).unwrap_err(),
+        DataError::Workbook { .. }
+    ));
+    let f = write_xlsx("empty.xlsx", &[("Blank", vec![])]);
+    assert!(matches!(
+        read(f.path()).unwrap_err(),
+        DataError::EmptySheet { .. }
+    ));
+}

@@ -1,0 +1,121 @@
+//! The fit as JSON: fields in a fixed order, non-finite numbers as `null`,
+//! so that the output is always valid JSON and the same for the same fit.
+
+use super::fit_table::FitContext;
+use crate::fit::stats::FitSummary;
+use serde::Serialize;
+
+/// One parameter in the JSON output.
+#[derive(Debug, Serialize)]
+struct ParamJson<'a> {
+    name: &'a str,
+    estimate: Option<f64>,
+    std_error: Option<f64>,
+    t_value: Option<f64>,
+    ci_low: Option<f64>,
+    ci_high: Option<f64>,
+}
+
+/// The whole JSON document (struct order = output order).
+#[derive(Debug, Serialize)]
+struct FitJson<'a> {
+    model: &'a str,
+    data: &'a str,
+    response: &'a str,
+    converged: bool,
+    parameters: Vec<ParamJson<'a>>,
+    ssr: Option<f64>,
+    residual_sd: Option<f64>,
+    dof: usize,
+    n_obs: usize,
+    skipped_rows: usize,
+    iterations: usize,
+    evaluations: usize,
+    stop_reason: &'a str,
+    condition_number: Option<f64>,
+    /// Row i, column j: correlation of parameters i and j (parameter order).
+    correlation: Vec<Vec<Option<f64>>>,
+    warnings: Vec<&'a str>,
+}
+
+fn finite(v: f64) -> Option<f64> {
+    v.is_finite().then_some(v)
+}
+
+/// Renders the fit as pretty-printed JSON, ending with a newline.
+pub fn fit_json(summary: &FitSummary, ctx: &FitContext) -> Result<String, serde_json::Error> {
+    let doc = FitJson {
+        model: &ctx.model,
+        data: &ctx.data,
+        response: &ctx.response,
+        converged: summary.converged,
+        parameters: summary
+            .parameters
+            .iter()
+            .map(|p| ParamJson {
+                name: &p.name,
+                estimate: finite(p.estimate),
+                std_error: finite(p.std_error),
+                t_value: finite(p.t_value),
+                ci_low: finite(p.ci_low),
+                ci_high: finite(p.ci_high),
+            })
+            .collect(),
+        ssr: finite(summary.ssr),
+        residual_sd: finite(summary.residual_sd),
+        dof: summary.dof,
+        n_obs: summary.n_obs,
+        skipped_rows: ctx.skipped_rows,
+        iterations: summary.iterations,
+        evaluations: summary.evaluations,
+        stop_reason: &summary.stop_reason,
+        condition_number: finite(summary.condition_number),
+        correlation: summary
+            .correlation
+            .iter()
+            .map(|r| r.iter().map(|&v| finite(v)).collect())
+            .collect(),
+        warnings: ctx
+            .warnings
+            .iter()
+            .chain(&summary.warnings)
+            .map(|s| s.as_str())
+            .collect(),
+    };
+    Ok(serde_json::to_string_pretty(&doc)? + "\n")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::fit_table::tests::sample_summary;
+
+    #[test]
+    fn non_finite_numbers_are_null_and_json_is_valid() {
+        let ctx = FitContext {
+            model: "a*exp(-rate_k*t)".into(),
+            data: "d.csv".into(),
+            response: "y".into(),
+            skipped_rows: 1,
+            warnings: vec!["skipped 1 row".into()],
+        };
+        let text = fit_json(&sample_summary(), &ctx).unwrap();
+        let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+        assert_eq!(v["parameters"][0]["name"], "a");
+        assert_eq!(v["parameters"][0]["estimate"], 12.3456789);
+        assert!(v["parameters"][1]["std_error"].is_null());
+        assert!(v["parameters"][1]["ci_low"].is_null());
+        assert_eq!(v["parameters"][1]["estimate"], -3.2e-9);
+        assert!(v["correlation"][0][1].is_null());
+        assert_eq!(v["correlation"][1][1], 1.0);
+        assert_eq!(v["dof"], 32);
+        assert_eq!(v["converged"], true);
+        assert_eq!(v["stop_reason"], "small_reduction");
+        assert_eq!(v["warnings"][0], "skipped 1 row");
+        assert_eq!(v["warnings"][1], "rate_k is poorly determined");
+        // Fixed field order: deterministic output.
+        assert!(text.find("\"model\"").unwrap() < text.find("\"parameters\"").unwrap());
+        assert!(text.find("\"ssr\"").unwrap() < text.find("\"warnings\"").unwrap());
+        assert_eq!(text, fit_json(&sample_summary(), &ctx).unwrap());
+    }
+}

@@ -1,0 +1,149 @@
+//! Real fits through the `foothold` binary from good starting values.
+//! Needs the Levenberg–Marquardt fitter, `Problem` and `summarize`.
+
+use std::path::PathBuf;
+use std::process::Command;
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+fn scratch_file(test: &str, text: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("foothold-fit-{}-{}", std::process::id(), test));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join("data.csv");
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn estimate(json: &serde_json::Value, name: &str) -> f64 {
+    json["parameters"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["name"] == name)
+        .and_then(|p| p["estimate"].as_f64())
+        .unwrap_or_else(|| panic!("no estimate for {name} in {json}"))
+}
+
+#[test]
+fn recovers_known_parameters_from_noise_free_data() {
+    // y = a*exp(-k*x) + c with a = 5, k = 0.7, c = 1.2, computed here, no noise:
+    // the least-squares estimates are exactly these values.
+    let (a, k, c) = (5.0_f64, 0.7_f64, 1.2_f64);
+    let mut text = String::from("x,y\n");
+    for i in 0..=25 {
+        let x = i as f64 * 0.2;
+        text += &format!("{},{:.17e}\n", x, a * (-k * x).exp() + c);
+    }
+    let p = scratch_file("exact", &text);
+    let (code, out, err) = run(&[
+        "fit",
+        p.to_str().unwrap(),
+        "--model",
+        "y = a*exp(-k*x) + c",
+        "--start",
+        "a=4,k=0.5,c=1",
+        "--format",
+        "json",
+    ]);
+    let _ = std::fs::remove_dir_all(p.parent().unwrap());
+    assert_eq!(code, 0, "{err}\n{out}");
+    assert!(!err.contains("panicked"), "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["converged"], true);
+    for (name, want) in [("a", a), ("k", k), ("c", c)] {
+        let got = estimate(&v, name);
+        assert!(
+            (got - want).abs() < 1e-6 * want.abs(),
+            "{name}: {got} vs {want}"
+        );
+    }
+    assert!(v["ssr"].as_f64().unwrap() < 1e-12, "{out}");
+    assert_eq!(v["dof"], 23);
+}
+
+#[test]
+fn fits_the_cooling_demo_close_to_its_generating_values() {
+    // demo-data/make_demo_data.py drew this file from ambient = 22.5,
+    // delta = 157.5, k = 0.085 with noise sd 0.4 C; the estimates land within 2 %.
+    let file = concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/part_cooling.csv");
+    let (code, out, err) = run(&[
+        "fit",
+        file,
+        "--model",
+        "temp = ambient + delta*exp(-k*minutes)",
+        "--start",
+        "ambient=20,delta=150,k=0.1",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}\n{out}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    for (name, want) in [("ambient", 22.5), ("delta", 157.5), ("k", 0.085)] {
+        let got = estimate(&v, name);
+        assert!((got - want).abs() < 0.02 * want, "{name}: {got} vs {want}");
+    }
+    assert_eq!(v["n_obs"], 31);
+    assert_eq!(v["dof"], 28);
+
+    let (code, table, _) = run(&[
+        "fit",
+        file,
+        "--model",
+        "temp = ambient + delta*exp(-k*minutes)",
+        "--start",
+        "ambient=20,delta=150,k=0.1",
+    ]);
+    assert_eq!(code, 0);
+    assert!(
+        table.contains("parameter") && table.contains("std. error"),
+        "{table}"
+    );
+    assert!(table.lines().any(|l| l.starts_with("ambient ")), "{table}");
+    assert!(table.contains("degrees of freedom       28"), "{table}");
+}
+
+#[test]
+fn rows_with_empty_cells_are_skipped_with_a_warning() {
+    let mut text = String::from("x,y,note\n");
+    for i in 0..12 {
+        let x = i as f64;
+        let y = 3.0 + 2.0 * x;
+        if i == 4 {
+            text += &format!("{x},,\n");
+        } else {
+            text += &format!("{x},{y},\n");
+        }
+    }
+    let p = scratch_file("skip", &text);
+    let args = [
+        "fit",
+        p.to_str().unwrap(),
+        "--model",
+        "y = b0 + b1*x",
+        "--start",
+        "b0=1,b1=1",
+    ];
+    let (code, out, err) = run(&args);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        err.contains("foothold: warning: skipped 1 row with an empty cell in x, y"),
+        "{err}"
+    );
+    assert!(out.contains("(11 rows used, 1 skipped)"), "{out}");
+    let mut quiet = args.to_vec();
+    quiet.push("--quiet");
+    let (code, _, err) = run(&quiet);
+    let _ = std::fs::remove_dir_all(p.parent().unwrap());
+    assert_eq!(code, 0);
+    assert!(!err.contains("warning"), "{err}");
+}
