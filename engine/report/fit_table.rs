@@ -174,6 +174,7 @@ pub(crate) mod tests {
                     t_value: 1000.0,
                     ci_low: 12.32,
                     ci_high: 12.37,
+                    p_value: 0.0,
                 },
                 ParamEstimate {
                     name: "rate_k".into(),
@@ -182,6 +183,7 @@ pub(crate) mod tests {
                     t_value: f64::NAN,
                     ci_low: f64::NEG_INFINITY,
                     ci_high: f64::INFINITY,
+                    p_value: f64::NAN,
                 },
             ],
             ssr: 0.5,
