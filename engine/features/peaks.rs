@@ -12,7 +12,7 @@
 //! smoothed second derivative inside a peak's region but away from its centre.
 
 use super::linefit::fit_line;
-use super::robust::median;
+use super::robust::{median, theil_sen};
 use super::smooth::savitzky_golay;
 use serde::Serialize;
 
@@ -222,6 +222,14 @@ fn maxima(x: &[f64], y: &[f64], sigma: f64) -> (Vec<Peak>, Vec<Shoulder>) {
         .max(0.02 * range)
         .max(2.0 * sigma);
 
+    // robust straight background: a candidate must stand above it
+    let Some((ts_slope, ts_icpt)) = theil_sen(x, y) else {
+        return (Vec::new(), Vec::new());
+    };
+    let robust_base = Base {
+        a: ts_icpt,
+        c: ts_slope,
+    };
     // candidate maxima with their prominence
     let mut cands: Vec<Cand> = Vec::new();
     for i in 1..n - 1 {
@@ -253,7 +261,8 @@ fn maxima(x: &[f64], y: &[f64], sigma: f64) -> (Vec<Peak>, Vec<Shoulder>) {
             }
         }
         let prominence = s[i] - lmin.max(rmin);
-        if lidx < i && ridx > i && prominence >= thr {
+        let above = s[i] - robust_base.at(x[i]);
+        if lidx < i && ridx > i && prominence >= thr && above >= thr {
             cands.push(Cand {
                 i,
                 lidx,
@@ -339,7 +348,15 @@ fn maxima(x: &[f64], y: &[f64], sigma: f64) -> (Vec<Peak>, Vec<Shoulder>) {
             (None, None) => gauss_sd.map(|g| g * (2.0 * std::f64::consts::LN_2).sqrt()),
         };
         let bl = base.at(centre);
-        regions.push((c.lidx, c.ridx, hwhm.unwrap_or(0.0)));
+        let mut vl = c.i;
+        while vl > 0 && s[vl - 1] <= s[vl] {
+            vl -= 1;
+        }
+        let mut vr = c.i;
+        while vr + 1 < n && s[vr + 1] <= s[vr] {
+            vr += 1;
+        }
+        regions.push((vl, vr, hwhm.unwrap_or(0.0)));
         peaks.push(Peak {
             centre,
             height,
@@ -354,27 +371,33 @@ fn maxima(x: &[f64], y: &[f64], sigma: f64) -> (Vec<Peak>, Vec<Shoulder>) {
         });
     }
 
-    // shoulders: significant minima of a smoother second derivative on a peak's flank
+    // shoulders: minima of a smoother second derivative that form their own lobe
+    // (prominent as minima of d2) on a peak's flank, away from every centre
     let mut shoulders: Vec<Shoulder> = Vec::new();
     let h2 = (2 * half).min((n - 1) / 2).max(2);
     let sm2 = savitzky_golay(x, y, h2, 2, &[sigma]);
     let d2 = &sm2.d2;
-    let mut cand2: Vec<usize> = (h2.max(1)..n.saturating_sub(h2.max(1)))
-        .filter(|&i| {
-            i >= 1
-                && i + 1 < n
-                && d2[i] < d2[i - 1]
-                && d2[i] <= d2[i + 1]
-                && d2[i] < -3.0 * sm2.sd_d2[i]
-        })
-        .collect();
-    cand2.sort_by(|&a, &b| d2[a].total_cmp(&d2[b]));
-    let mut taken: Vec<usize> = Vec::new();
-    for i in cand2 {
-        if taken.iter().any(|&t| t.abs_diff(i) <= half) {
+    for i in h2.max(1)..n.saturating_sub(h2.max(1)) {
+        if !(d2[i] < d2[i - 1] && d2[i] <= d2[i + 1] && d2[i] < -3.0 * sm2.sd_d2[i]) {
             continue;
         }
-        taken.push(i);
+        // prominence of the d2 minimum: rise on each side before d2 drops below it again
+        let rise = |dir: isize| {
+            let mut k = i as isize;
+            let mut top = d2[i];
+            loop {
+                k += dir;
+                if k < 0 || k as usize >= n || d2[k as usize] < d2[i] {
+                    break;
+                }
+                top = top.max(d2[k as usize]);
+            }
+            top - d2[i]
+        };
+        if rise(-1).min(rise(1)) < 4.0 * sm2.sd_d2[i] {
+            continue;
+        }
+        // the peak whose valley-to-valley span holds it
         let Some(pk) = peaks
             .iter()
             .zip(&regions)
@@ -382,12 +405,12 @@ fn maxima(x: &[f64], y: &[f64], sigma: f64) -> (Vec<Peak>, Vec<Shoulder>) {
         else {
             continue;
         };
+        let near_any = peaks
+            .iter()
+            .any(|p| (x[i] - p.centre).abs() < 0.5 * p.hwhm.unwrap_or(0.0));
         let p = &peaks[pk];
-        let near = (x[i] - p.centre).abs()
-            < (0.5 * p.hwhm.unwrap_or(0.0))
-                .max(x[(i + half).min(n - 1)] - x[i.saturating_sub(half)]);
         let height = s[i] - (p.baseline_level + p.baseline_slope * (x[i] - p.centre));
-        if near || height < thr {
+        if near_any || height < thr {
             continue;
         }
         shoulders.push(Shoulder {

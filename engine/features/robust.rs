@@ -70,6 +70,27 @@ pub fn spearman(x: &[f64], y: &[f64]) -> f64 {
     }
 }
 
+/// Robust straight line (slope, intercept) by Theil (1950) and Sen (1968): the
+/// median of pairwise slopes, and the median of y − slope·x. At most 400 evenly
+/// strided points are used so the cost stays bounded. None for < 2 distinct x.
+pub fn theil_sen(x: &[f64], y: &[f64]) -> Option<(f64, f64)> {
+    let n = x.len().min(y.len());
+    let step = n.div_ceil(400).max(1);
+    let idx: Vec<usize> = (0..n).step_by(step).collect();
+    let mut slopes = Vec::with_capacity(idx.len() * idx.len() / 2);
+    for (a, &i) in idx.iter().enumerate() {
+        for &j in &idx[a + 1..] {
+            let dx = x[j] - x[i];
+            if dx != 0.0 {
+                slopes.push((y[j] - y[i]) / dx);
+            }
+        }
+    }
+    let slope = median(&slopes)?;
+    let res: Vec<f64> = (0..n).map(|i| y[i] - slope * x[i]).collect();
+    Some((slope, median(&res)?))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -84,5 +105,8 @@ mod tests {
         assert!((spearman(&[1.0, 2.0, 3.0, 4.0], &[1.0, 8.0, 27.0, 64.0]) - 1.0).abs() < 1e-12);
         assert!((spearman(&[1.0, 2.0, 3.0], &[3.0, 2.0, 1.0]) + 1.0).abs() < 1e-12);
         assert_eq!(spearman(&[1.0, 2.0, 3.0], &[5.0, 5.0, 5.0]), 0.0);
+        // one wild point does not move the robust line
+        let (b, a) = theil_sen(&[0.0, 1.0, 2.0, 3.0, 4.0], &[1.0, 3.0, 5.0, 70.0, 9.0]).unwrap();
+        assert!((b - 2.0).abs() < 1e-12 && (a - 1.0).abs() < 1e-12);
     }
 }
