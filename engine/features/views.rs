@@ -141,14 +141,18 @@ impl View {
         while i < raw.len() {
             let x0 = raw[i].0;
             let mut j = i;
-            let mut sum = 0.0;
             while j < raw.len() && raw[j].0 == x0 {
-                sum += raw[j].1;
                 j += 1;
             }
             let c = j - i;
-            points.push((x0, sum / c as f64));
-            counts.push(c);
+            // mean as Σ v/c so that huge values cannot overflow
+            let mean: f64 = raw[i..j].iter().map(|p| p.1 / c as f64).sum();
+            if mean.is_finite() {
+                points.push((x0, mean));
+                counts.push(c);
+            } else {
+                excluded.non_finite += c;
+            }
             i = j;
         }
         View {
