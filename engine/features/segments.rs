@@ -217,7 +217,7 @@ mod tests {
     fn exact_line_is_straight_throughout() {
         let x: Vec<f64> = (0..8).map(|i| 1e-12 * i as f64).collect();
         let y: Vec<f64> = x.iter().map(|t| 1e12 - 3e22 * t).collect();
-        let s = find_segments(&x, &y, &vec![1e-6 * 2.1e11; 8]);
+        let s = find_segments(&x, &y, &[1e-6 * 2.1e11; 8]);
         let l = s.longest.unwrap();
         assert_eq!(l.n_points, 8);
         assert!((l.slope / -3e22 - 1.0).abs() < 1e-9);
