@@ -304,7 +304,10 @@ struct RawTransforms {
 
 fn parse_transforms(text: &str) -> Result<TransformRules, RulesError> {
     const FILE: &str = "transforms.yaml";
-    let bad = |message: String| RulesError::Invalid { file: FILE, message };
+    let bad = |message: String| RulesError::Invalid {
+        file: FILE,
+        message,
+    };
     let raw: RawTransforms =
         serde_yaml_ng::from_str(text).map_err(|source| RulesError::Yaml { file: FILE, source })?;
     let mut rule_sets = BTreeMap::new();
@@ -336,7 +339,10 @@ fn parse_transforms(text: &str) -> Result<TransformRules, RulesError> {
     for t in raw.transforms {
         for s in &t.rules {
             if !rule_sets.contains_key(s) {
-                return Err(bad(format!("transform '{}' names unknown rule set '{s}'", t.name)));
+                return Err(bad(format!(
+                    "transform '{}' names unknown rule set '{s}'",
+                    t.name
+                )));
             }
         }
         // first name (y, f or h) becomes Var(0), the plateau A becomes Param(0)
@@ -360,7 +366,8 @@ fn parse_transforms(text: &str) -> Result<TransformRules, RulesError> {
     }
     let mut expand_arguments_of = Vec::new();
     for n in raw.expand_arguments_of {
-        expand_arguments_of.push(Func::from_name(&n).ok_or_else(|| bad(format!("unknown function '{n}'")))?);
+        expand_arguments_of
+            .push(Func::from_name(&n).ok_or_else(|| bad(format!("unknown function '{n}'")))?);
     }
     Ok(TransformRules {
         transforms,
@@ -431,7 +438,10 @@ mod tests {
         // every rule set is used by some transform
         for set in r.transforms.rule_sets.keys() {
             assert!(
-                r.transforms.transforms.iter().any(|t| t.rule_sets.contains(set)),
+                r.transforms
+                    .transforms
+                    .iter()
+                    .any(|t| t.rule_sets.contains(set)),
                 "rule set {set} unused"
             );
         }

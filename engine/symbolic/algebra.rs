@@ -290,7 +290,12 @@ pub fn isolate(value: Expr, e: &Expr, p: usize, notes: &mut Vec<String>) -> Opti
                     }
                     isolate(pow(value, div(Expr::Num(1.0), b)), &a, p, notes)
                 }
-                (BinOp::Pow, false) => isolate(div(call(Func::Log, value), call(Func::Log, a)), &b, p, notes),
+                (BinOp::Pow, false) => isolate(
+                    div(call(Func::Log, value), call(Func::Log, a)),
+                    &b,
+                    p,
+                    notes,
+                ),
             }
         }
         Expr::Call(f, a) => {
@@ -320,7 +325,10 @@ pub fn isolate(value: Expr, e: &Expr, p: usize, notes: &mut Vec<String>) -> Opti
                 }
                 Func::Tanh => {
                     // atanh(v) = log((1 + v)/(1 − v)) / 2
-                    let r = div(add(Expr::Num(1.0), value.clone()), sub(Expr::Num(1.0), value));
+                    let r = div(
+                        add(Expr::Num(1.0), value.clone()),
+                        sub(Expr::Num(1.0), value),
+                    );
                     mul(Expr::Num(0.5), call(Func::Log, r))
                 }
                 Func::Sinh | Func::Cosh => return None,

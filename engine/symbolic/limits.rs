@@ -188,7 +188,9 @@ pub fn limit_cases(f: &Expr, var: usize, dir: Direction) -> Vec<LimitCase> {
         if let Some((v0, v1)) = cx.taylor(f) {
             let (value, slope) = (algebra::tidy(&v0), algebra::tidy(&v1));
             let leading = if algebra::is_zero(&slope) {
-                Leading::Const { value: value.clone() }
+                Leading::Const {
+                    value: value.clone(),
+                }
             } else {
                 Leading::Linear {
                     value: value.clone(),
@@ -207,7 +209,10 @@ pub fn limit_cases(f: &Expr, var: usize, dir: Direction) -> Vec<LimitCase> {
         for (asm2, case) in cx.finish(&asm, &a) {
             let conditions = asm2
                 .into_iter()
-                .map(|(expr, s)| Condition { expr, positive: s > 0 })
+                .map(|(expr, s)| Condition {
+                    expr,
+                    positive: s > 0,
+                })
                 .collect();
             out.push(LimitCase {
                 conditions,
@@ -253,7 +258,11 @@ impl Form {
         let expo = (0..n)
             .map(|k| {
                 let b = get(o, k);
-                algebra::tidy(&if s > 0.0 { algebra::add(get(self, k), b) } else { algebra::sub(get(self, k), b) })
+                algebra::tidy(&if s > 0.0 {
+                    algebra::add(get(self, k), b)
+                } else {
+                    algebra::sub(get(self, k), b)
+                })
             })
             .collect();
         Form {
@@ -267,7 +276,11 @@ impl Form {
             } else {
                 algebra::sub(self.power.clone(), o.power.clone())
             }),
-            logp: if s > 0.0 { self.logp + o.logp } else { self.logp - o.logp },
+            logp: if s > 0.0 {
+                self.logp + o.logp
+            } else {
+                self.logp - o.logp
+            },
             expo,
         }
     }
@@ -320,7 +333,11 @@ impl Ctx<'_> {
     fn sign(&self, e: &Expr, asm: &Asm) -> Sg {
         if !e.has_any_param() && !e.has_any_var() {
             let v = e.eval(&[], &[]);
-            return if v.is_nan() { Sg::Unknown } else { Sg::Known(sgn(v)) };
+            return if v.is_nan() {
+                Sg::Unknown
+            } else {
+                Sg::Known(sgn(v))
+            };
         }
         let k = algebra::key(e);
         for (a, s) in asm {
@@ -388,7 +405,11 @@ impl Ctx<'_> {
         }
         match e {
             Expr::Var(_) => {
-                let c = if self.dir == Direction::NegInf { -1.0 } else { 1.0 };
+                let c = if self.dir == Direction::NegInf {
+                    -1.0
+                } else {
+                    1.0
+                };
                 one(Asy::Form(Form {
                     coef: Expr::Num(c),
                     power: Expr::Num(1.0),
@@ -422,7 +443,10 @@ impl Ctx<'_> {
             }
             Expr::Bin(BinOp::Pow, a, b) => {
                 if b.has_var(self.v) {
-                    let rewritten = Expr::call(Func::Exp, Expr::mul((**b).clone(), Expr::call(Func::Log, (**a).clone())));
+                    let rewritten = Expr::call(
+                        Func::Exp,
+                        Expr::mul((**b).clone(), Expr::call(Func::Log, (**a).clone())),
+                    );
                     return self.an(&rewritten, asm);
                 }
                 let mut out = Vec::new();
@@ -459,11 +483,15 @@ impl Ctx<'_> {
                             std::cmp::Ordering::Greater => Asy::Form(a.clone()),
                             std::cmp::Ordering::Less => Asy::Form(b.clone()),
                             std::cmp::Ordering::Equal => {
-                                let c = algebra::tidy(&algebra::add(a.coef.clone(), b.coef.clone()));
+                                let c =
+                                    algebra::tidy(&algebra::add(a.coef.clone(), b.coef.clone()));
                                 if algebra::is_zero(&c) {
                                     Asy::Unknown // leading terms cancel
                                 } else {
-                                    Asy::Form(Form { coef: c, ..a.clone() })
+                                    Asy::Form(Form {
+                                        coef: c,
+                                        ..a.clone()
+                                    })
                                 }
                             }
                         };
@@ -477,15 +505,24 @@ impl Ctx<'_> {
                 }
                 let lead = leading_expo(a);
                 self.fork(asm, &lead, &|s, sg| {
-                    vec![(s.clone(), if sg > 0 { Asy::Form(a.clone()) } else { Asy::Unknown })]
+                    vec![(
+                        s.clone(),
+                        if sg > 0 {
+                            Asy::Form(a.clone())
+                        } else {
+                            Asy::Unknown
+                        },
+                    )]
                 })
             }
-            (Asy::Form(a), Asy::Blow(s)) | (Asy::Blow(s), Asy::Form(a)) if !a.has_exp() => one(Asy::Blow(*s)),
+            (Asy::Form(a), Asy::Blow(s)) | (Asy::Blow(s), Asy::Form(a)) if !a.has_exp() => {
+                one(Asy::Blow(*s))
+            }
             (Asy::Vanish, Asy::Vanish) => one(Asy::Vanish),
             (Asy::Blow(s), Asy::Blow(t)) if s == t && *s != 0 => one(Asy::Blow(*s)),
-            (Asy::Bounded, Asy::Vanish) | (Asy::Vanish, Asy::Bounded) | (Asy::Bounded, Asy::Bounded) => {
-                one(Asy::Bounded)
-            }
+            (Asy::Bounded, Asy::Vanish)
+            | (Asy::Vanish, Asy::Bounded)
+            | (Asy::Bounded, Asy::Bounded) => one(Asy::Bounded),
             (Asy::Bounded, Asy::Blow(s)) | (Asy::Blow(s), Asy::Bounded) => one(Asy::Blow(*s)),
             (Asy::Bounded, Asy::Form(a)) | (Asy::Form(a), Asy::Bounded) => self
                 .tend(asm, a)
@@ -614,7 +651,11 @@ impl Ctx<'_> {
                 coef: algebra::tidy(&algebra::pow(f.coef.clone(), b.clone())),
                 power: algebra::tidy(&algebra::mul(f.power.clone(), b.clone())),
                 logp,
-                expo: f.expo.iter().map(|e| algebra::tidy(&algebra::mul(e.clone(), b.clone()))).collect(),
+                expo: f
+                    .expo
+                    .iter()
+                    .map(|e| algebra::tidy(&algebra::mul(e.clone(), b.clone())))
+                    .collect(),
             })
         };
         if integer {
@@ -647,8 +688,12 @@ impl Ctx<'_> {
                             out.push((s, r));
                         }
                         Tend::Zero => out.extend(self.behave(&s, &rule.zero, a, arg, 0)),
-                        Tend::Inf(sg) if sg > 0 => out.extend(self.behave(&s, &rule.pos_inf, a, arg, 1)),
-                        Tend::Inf(sg) if sg < 0 => out.extend(self.behave(&s, &rule.neg_inf, a, arg, -1)),
+                        Tend::Inf(sg) if sg > 0 => {
+                            out.extend(self.behave(&s, &rule.pos_inf, a, arg, 1))
+                        }
+                        Tend::Inf(sg) if sg < 0 => {
+                            out.extend(self.behave(&s, &rule.neg_inf, a, arg, -1))
+                        }
                         Tend::Inf(_) => out.push((s, Asy::Unknown)),
                     }
                 }
@@ -743,9 +788,16 @@ impl Ctx<'_> {
 
     /// log of a form: the exponent's leading term, else power·log t, else log of the coefficient.
     fn log_form(&self, a: &Form) -> Option<Form> {
-        if let Some(k) = (0..a.expo.len()).rev().find(|&k| !algebra::is_zero(&a.expo[k])) {
+        if let Some(k) = (0..a.expo.len())
+            .rev()
+            .find(|&k| !algebra::is_zero(&a.expo[k]))
+        {
             let deg = (k + 1) as f64;
-            let p = if self.dir == Direction::ZeroPlus { -deg } else { deg };
+            let p = if self.dir == Direction::ZeroPlus {
+                -deg
+            } else {
+                deg
+            };
             return Some(Form {
                 coef: a.expo[k].clone(),
                 power: Expr::Num(p),
@@ -784,7 +836,9 @@ impl Ctx<'_> {
                     .map(|(s, t)| {
                         let lim = match t {
                             Tend::Const(v) => Limit::Finite { value: v },
-                            Tend::Zero => Limit::Finite { value: Expr::Num(0.0) },
+                            Tend::Zero => Limit::Finite {
+                                value: Expr::Num(0.0),
+                            },
                             Tend::Inf(1) => Limit::PosInf,
                             Tend::Inf(-1) => Limit::NegInf,
                             Tend::Inf(_) => Limit::Unknown,
@@ -793,7 +847,12 @@ impl Ctx<'_> {
                     })
                     .collect()
             }
-            Asy::Vanish => one(Leading::Zero, Limit::Finite { value: Expr::Num(0.0) }),
+            Asy::Vanish => one(
+                Leading::Zero,
+                Limit::Finite {
+                    value: Expr::Num(0.0),
+                },
+            ),
             Asy::Blow(s) => one(
                 Leading::Infinite { sign: *s },
                 match s {
@@ -808,7 +867,9 @@ impl Ctx<'_> {
     }
 
     fn form_leading(&self, a: &Form) -> Leading {
-        let nz: Vec<usize> = (0..a.expo.len()).filter(|&k| !algebra::is_zero(&a.expo[k])).collect();
+        let nz: Vec<usize> = (0..a.expo.len())
+            .filter(|&k| !algebra::is_zero(&a.expo[k]))
+            .collect();
         if !nz.is_empty() {
             if nz != [0] || a.logp != 0 {
                 return Leading::Unknown;
@@ -835,12 +896,16 @@ impl Ctx<'_> {
         let flat = algebra::is_zero(&a.power);
         match (flat, a.logp) {
             (true, 0) if algebra::is_zero(&a.coef) => Leading::Zero,
-            (true, 0) => Leading::Const { value: a.coef.clone() },
+            (true, 0) => Leading::Const {
+                value: a.coef.clone(),
+            },
             (false, 0) => Leading::Power {
                 coef: a.coef.clone(),
                 exponent: a.power.clone(),
             },
-            (true, 1) => Leading::Log { coef: a.coef.clone() },
+            (true, 1) => Leading::Log {
+                coef: a.coef.clone(),
+            },
             _ => Leading::Unknown,
         }
     }
@@ -885,7 +950,10 @@ impl Ctx<'_> {
                             if algebra::is_zero(&algebra::tidy(&a0)) {
                                 return None;
                             }
-                            let r = Expr::call(Func::Exp, Expr::mul((**b).clone(), Expr::call(Func::Log, (**a).clone())));
+                            let r = Expr::call(
+                                Func::Exp,
+                                Expr::mul((**b).clone(), Expr::call(Func::Log, (**a).clone())),
+                            );
                             return self.taylor(&r);
                         }
                         let natural = matches!(**b, Expr::Num(n) if n.fract() == 0.0 && n >= 0.0);
@@ -896,7 +964,10 @@ impl Ctx<'_> {
                         (
                             algebra::pow(a0.clone(), k.clone()),
                             algebra::mul(
-                                algebra::mul(k.clone(), algebra::pow(a0, algebra::sub(k, Expr::Num(1.0)))),
+                                algebra::mul(
+                                    k.clone(),
+                                    algebra::pow(a0, algebra::sub(k, Expr::Num(1.0))),
+                                ),
                                 a1,
                             ),
                         )
@@ -906,7 +977,9 @@ impl Ctx<'_> {
             Expr::Call(f, a) => {
                 let (a0, a1) = self.taylor(a)?;
                 let a0t = algebra::tidy(&a0);
-                if matches!(f, Func::Log | Func::Log10 | Func::Sqrt | Func::Abs) && algebra::is_zero(&a0t) {
+                if matches!(f, Func::Log | Func::Log10 | Func::Sqrt | Func::Abs)
+                    && algebra::is_zero(&a0t)
+                {
                     return None;
                 }
                 let rule = self.rules.function(*f)?;
@@ -956,12 +1029,18 @@ fn neg_asy(x: Asy) -> Asy {
 fn mul_asy(x: &Asy, y: &Asy, multiply: bool) -> Asy {
     match (x, y, multiply) {
         (Asy::Form(a), Asy::Form(b), m) => Asy::Form(a.combine(b, if m { 1.0 } else { -1.0 })),
-        (Asy::Vanish, Asy::Form(a), true) | (Asy::Form(a), Asy::Vanish, true) if !a.has_exp() => Asy::Vanish,
+        (Asy::Vanish, Asy::Form(a), true) | (Asy::Form(a), Asy::Vanish, true) if !a.has_exp() => {
+            Asy::Vanish
+        }
         (Asy::Vanish, Asy::Form(a), false) if !a.has_exp() => Asy::Vanish,
         (Asy::Form(a), Asy::Blow(_), false) if !a.has_exp() => Asy::Vanish,
         (Asy::Form(a), Asy::Vanish, false) if !a.has_exp() => Asy::Blow(0),
-        (Asy::Blow(_), Asy::Form(a), _) | (Asy::Form(a), Asy::Blow(_), true) if !a.has_exp() => Asy::Blow(0),
-        (Asy::Form(a), Asy::Bounded, _) | (Asy::Bounded, Asy::Form(a), _) if is_const_form(a) => Asy::Bounded,
+        (Asy::Blow(_), Asy::Form(a), _) | (Asy::Form(a), Asy::Blow(_), true) if !a.has_exp() => {
+            Asy::Blow(0)
+        }
+        (Asy::Form(a), Asy::Bounded, _) | (Asy::Bounded, Asy::Form(a), _) if is_const_form(a) => {
+            Asy::Bounded
+        }
         (Asy::Bounded, Asy::Bounded, true) => Asy::Bounded,
         (Asy::Vanish, Asy::Vanish, true) => Asy::Vanish,
         (Asy::Blow(s), Asy::Blow(t), true) => Asy::Blow(s * t),
@@ -981,7 +1060,10 @@ mod tests {
     /// The case whose conditions hold at `ps`.
     fn case_at(m: &Model, dir: Direction, ps: &[f64]) -> LimitCase {
         let cases = limit_cases(&m.rhs, 0, dir);
-        let hits: Vec<&LimitCase> = cases.iter().filter(|c| c.conditions.iter().all(|k| k.holds(ps, &[]))).collect();
+        let hits: Vec<&LimitCase> = cases
+            .iter()
+            .filter(|c| c.conditions.iter().all(|k| k.holds(ps, &[])))
+            .collect();
         assert_eq!(hits.len(), 1, "cases {:?}", cases);
         hits[0].clone()
     }
@@ -1032,9 +1114,18 @@ mod tests {
     #[test]
     fn power_law_at_zero() {
         let m = model("b*x^c");
-        assert_eq!(finite(&case_at(&m, Direction::ZeroPlus, &[2.0, 0.5]), &[2.0, 0.5]), 0.0);
-        assert_eq!(case_at(&m, Direction::ZeroPlus, &[2.0, -0.5]).limit, Limit::PosInf);
-        assert_eq!(case_at(&m, Direction::ZeroPlus, &[-2.0, -0.5]).limit, Limit::NegInf);
+        assert_eq!(
+            finite(&case_at(&m, Direction::ZeroPlus, &[2.0, 0.5]), &[2.0, 0.5]),
+            0.0
+        );
+        assert_eq!(
+            case_at(&m, Direction::ZeroPlus, &[2.0, -0.5]).limit,
+            Limit::PosInf
+        );
+        assert_eq!(
+            case_at(&m, Direction::ZeroPlus, &[-2.0, -0.5]).limit,
+            Limit::NegInf
+        );
         match case_at(&m, Direction::PosInf, &[2.0, 0.5]).leading {
             Leading::Power { coef, exponent } => {
                 assert_eq!(coef.eval(&[2.0, 0.5], &[]), 2.0);
@@ -1063,12 +1154,28 @@ mod tests {
     #[test]
     fn arctangent_limits() {
         let m = model("atan(x/w)");
-        assert!((finite(&case_at(&m, Direction::PosInf, &[2.0]), &[2.0]) - std::f64::consts::FRAC_PI_2).abs() < 1e-15);
-        assert!((finite(&case_at(&m, Direction::PosInf, &[-2.0]), &[-2.0]) + std::f64::consts::FRAC_PI_2).abs() < 1e-15);
-        assert!((finite(&case_at(&m, Direction::NegInf, &[2.0]), &[2.0]) + std::f64::consts::FRAC_PI_2).abs() < 1e-15);
+        assert!(
+            (finite(&case_at(&m, Direction::PosInf, &[2.0]), &[2.0]) - std::f64::consts::FRAC_PI_2)
+                .abs()
+                < 1e-15
+        );
+        assert!(
+            (finite(&case_at(&m, Direction::PosInf, &[-2.0]), &[-2.0])
+                + std::f64::consts::FRAC_PI_2)
+                .abs()
+                < 1e-15
+        );
+        assert!(
+            (finite(&case_at(&m, Direction::NegInf, &[2.0]), &[2.0]) + std::f64::consts::FRAC_PI_2)
+                .abs()
+                < 1e-15
+        );
         // b1 - b2*x - atan(b3/(x-b4))/pi at +inf: -inf for b2 > 0 (line dominates)
         let m = model("b1 - b2*x - atan(b3/(x-b4))/pi");
-        assert_eq!(case_at(&m, Direction::PosInf, &[1.0, 2.0, 1.0, 1.0]).limit, Limit::NegInf);
+        assert_eq!(
+            case_at(&m, Direction::PosInf, &[1.0, 2.0, 1.0, 1.0]).limit,
+            Limit::NegInf
+        );
     }
 
     #[test]
@@ -1090,7 +1197,10 @@ mod tests {
         }
         let m = model("(x + b) - x");
         let c = &limit_cases(&m.rhs, 0, Direction::PosInf)[0];
-        assert!(matches!(c.limit, Limit::Unknown) || matches!(&c.limit, Limit::Finite { value } if value.eval(&[1.5], &[]) == 1.5));
+        assert!(
+            matches!(c.limit, Limit::Unknown)
+                || matches!(&c.limit, Limit::Finite { value } if value.eval(&[1.5], &[]) == 1.5)
+        );
     }
 
     #[test]
@@ -1099,7 +1209,10 @@ mod tests {
         let m = model("b1*exp(b2/(x+b3))");
         let ps = [2.0, 1.0, 4.0];
         assert_eq!(finite(&case_at(&m, Direction::PosInf, &ps), &ps), 2.0);
-        assert!((finite(&case_at(&m, Direction::ZeroPlus, &ps), &ps) - 2.0 * 0.25f64.exp()).abs() < 1e-12);
+        assert!(
+            (finite(&case_at(&m, Direction::ZeroPlus, &ps), &ps) - 2.0 * 0.25f64.exp()).abs()
+                < 1e-12
+        );
         // exp(-k*(x-c)) at +inf: coefficient exp(k c); parameters sort as (c, k)
         let m = model("exp(-k*(x-c))");
         let ps = [2.0, 0.5];

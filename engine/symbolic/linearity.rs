@@ -269,7 +269,10 @@ mod tests {
              + b8*cos(2*pi*x/b7) + b9*sin(2*pi*x/b7)",
         );
         let s = separate_model(&m);
-        assert_eq!(names(&m, &s.linear), ["b1", "b2", "b3", "b5", "b6", "b8", "b9"]);
+        assert_eq!(
+            names(&m, &s.linear),
+            ["b1", "b2", "b3", "b5", "b6", "b8", "b9"]
+        );
         assert_eq!(names(&m, &s.nonlinear), ["b4", "b7"]);
         check_identity(&m, &s);
     }

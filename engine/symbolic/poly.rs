@@ -240,7 +240,10 @@ impl Poly {
                 .or_insert_with(|| (basis.clone(), Poly::default()));
             g.1.push(*c, rest);
         }
-        groups.into_values().filter(|(_, p)| !p.is_empty()).collect()
+        groups
+            .into_values()
+            .filter(|(_, p)| !p.is_empty())
+            .collect()
     }
 }
 
@@ -293,7 +296,8 @@ pub fn expand(e: &Expr) -> Poly {
         Expr::Bin(BinOp::Sub, a, b) => expand(a).add_scaled(&expand(b), -1.0),
         Expr::Bin(BinOp::Mul, a, b) => {
             let (pa, pb) = (expand(a), expand(b));
-            pa.mul(&pb).unwrap_or_else(|| opaque(algebra::mul(pa.to_expr(), pb.to_expr())))
+            pa.mul(&pb)
+                .unwrap_or_else(|| opaque(algebra::mul(pa.to_expr(), pb.to_expr())))
         }
         Expr::Bin(BinOp::Div, a, b) => {
             let (pa, pb) = (expand(a), expand(b));
@@ -308,7 +312,8 @@ pub fn expand(e: &Expr) -> Poly {
                     p
                 }
             };
-            pa.mul(&inv).unwrap_or_else(|| opaque(algebra::div(pa.to_expr(), pb.to_expr())))
+            pa.mul(&inv)
+                .unwrap_or_else(|| opaque(algebra::div(pa.to_expr(), pb.to_expr())))
         }
         Expr::Bin(BinOp::Pow, a, b) => {
             let pa = expand(a);

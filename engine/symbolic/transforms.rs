@@ -151,7 +151,11 @@ pub fn plateau_candidates(f: &Expr, n_params: usize) -> Vec<usize> {
 }
 
 /// Applies one transform; `plateau` names the plateau parameter for plateau transforms.
-pub fn apply_transform(model: &Model, spec: &TransformSpec, plateau: Option<usize>) -> Option<LinearisedForm> {
+pub fn apply_transform(
+    model: &Model,
+    spec: &TransformSpec,
+    plateau: Option<usize>,
+) -> Option<LinearisedForm> {
     let np = model.n_params();
     let input = match plateau {
         Some(a) => {
@@ -207,7 +211,10 @@ fn form_from_poly(p: &Poly, np: usize, plateau: Option<usize>) -> Option<Lineari
     for (m, c) in &groups {
         let basis = poly::mono_expr(m);
         let coef = c.to_expr();
-        if algebra::params_in(&coef).iter().all(|q| nonlinear.contains(q)) {
+        if algebra::params_in(&coef)
+            .iter()
+            .all(|q| nonlinear.contains(q))
+        {
             offset = algebra::add(offset, algebra::mul(coef, basis));
         } else {
             coefficients.push(Coefficient {
@@ -219,7 +226,10 @@ fn form_from_poly(p: &Poly, np: usize, plateau: Option<usize>) -> Option<Lineari
     if coefficients.is_empty() {
         return None;
     }
-    let exprs: Vec<Expr> = coefficients.iter().map(|c| c.expr_in_params.clone()).collect();
+    let exprs: Vec<Expr> = coefficients
+        .iter()
+        .map(|c| c.expr_in_params.clone())
+        .collect();
     let back_map = solve_back_map(&exprs, np, &nonlinear);
     Some(LinearisedForm {
         transform: String::new(),
@@ -446,7 +456,10 @@ pub fn cross_multiply(model: &Model) -> Option<LinearisedForm> {
     if coefficients.is_empty() {
         return None;
     }
-    let exprs: Vec<Expr> = coefficients.iter().map(|c| c.expr_in_params.clone()).collect();
+    let exprs: Vec<Expr> = coefficients
+        .iter()
+        .map(|c| c.expr_in_params.clone())
+        .collect();
     let back_map = solve_back_map(&exprs, np, &[]);
     Some(LinearisedForm {
         transform: "cross_multiplied".into(),
@@ -473,20 +486,42 @@ mod tests {
         forms
             .iter()
             .find(|f| f.transform == name)
-            .unwrap_or_else(|| panic!("no {name} form among {:?}", forms.iter().map(|f| &f.transform).collect::<Vec<_>>()))
+            .unwrap_or_else(|| {
+                panic!(
+                    "no {name} form among {:?}",
+                    forms.iter().map(|f| &f.transform).collect::<Vec<_>>()
+                )
+            })
     }
 
     /// Coefficients computed from `truth`, then back-mapped, recover `truth`;
     /// and target = offset + Σ φ·basis holds at sample x where T(f) is defined.
     fn check_round_trip(m: &Model, f: &LinearisedForm, truth: &[f64]) {
-        let phi: Vec<f64> = f.coefficients.iter().map(|c| c.expr_in_params.eval(truth, &[])).collect();
+        let phi: Vec<f64> = f
+            .coefficients
+            .iter()
+            .map(|c| c.expr_in_params.eval(truth, &[]))
+            .collect();
         let known: Vec<f64> = (0..truth.len())
-            .map(|i| if f.remaining_nonlinear.contains(&i) { truth[i] } else { f64::NAN })
+            .map(|i| {
+                if f.remaining_nonlinear.contains(&i) {
+                    truth[i]
+                } else {
+                    f64::NAN
+                }
+            })
             .collect();
         let got = f.back_map.recover(&phi, &known);
-        assert!(f.back_map.unresolved.is_empty(), "unresolved {:?}", f.back_map.unresolved);
+        assert!(
+            f.back_map.unresolved.is_empty(),
+            "unresolved {:?}",
+            f.back_map.unresolved
+        );
         for (g, t) in got.iter().zip(truth) {
-            assert!((g - t).abs() < 1e-9 * t.abs().max(1.0), "recovered {got:?}, truth {truth:?}");
+            assert!(
+                (g - t).abs() < 1e-9 * t.abs().max(1.0),
+                "recovered {got:?}, truth {truth:?}"
+            );
         }
         for x in [0.4, 1.3, 2.2] {
             let y = m.rhs.eval(truth, &[x]);
@@ -496,7 +531,10 @@ mod tests {
             for (c, p) in f.coefficients.iter().zip(&phi) {
                 rhs += p * c.basis.eval(truth, &row);
             }
-            assert!((lhs - rhs).abs() < 1e-9 * lhs.abs().max(1.0), "x={x}: {lhs} vs {rhs}");
+            assert!(
+                (lhs - rhs).abs() < 1e-9 * lhs.abs().max(1.0),
+                "x={x}: {lhs} vs {rhs}"
+            );
         }
     }
 
@@ -507,7 +545,11 @@ mod tests {
         let f = form(&forms, "log");
         assert!(f.remaining_nonlinear.is_empty());
         assert_eq!(f.coefficients.len(), 2);
-        assert!(f.conditions.iter().any(|c| c == "b1 > 0"), "{:?}", f.conditions);
+        assert!(
+            f.conditions.iter().any(|c| c == "b1 > 0"),
+            "{:?}",
+            f.conditions
+        );
         check_round_trip(&m, f, &[2.5, 0.7]);
         // the negated variant handles b1 < 0
         let g = form(&forms, "log_negated");
@@ -522,7 +564,11 @@ mod tests {
         assert_eq!(f.remaining_nonlinear, vec![0]);
         assert_eq!(f.coefficients.len(), 2);
         // basis for b2 is exp(b1 x): at b1 = 0.3, x = 2 → e^0.6
-        let b2 = f.coefficients.iter().find(|c| c.expr_in_params == Expr::Param(1)).unwrap();
+        let b2 = f
+            .coefficients
+            .iter()
+            .find(|c| c.expr_in_params == Expr::Param(1))
+            .unwrap();
         assert!((b2.basis.eval(&[0.3, 0.0, 0.0], &[2.0]) - 0.6f64.exp()).abs() < 1e-12);
         check_round_trip(&m, f, &[0.3, 1.5, 0.8]);
     }
