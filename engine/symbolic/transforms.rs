@@ -652,3 +652,24 @@ mod tests {
         assert!(cross_multiply(&model("b1 + b2*x")).is_none());
     }
 }
+
+#[cfg(test)]
+mod serialise_tests {
+    use super::*;
+
+    #[test]
+    fn forms_serialise_to_json() {
+        let cols = vec!["x".to_string(), "y".to_string()];
+        let m = Model::new("a*exp(-((x-c)/w)^2)", &cols, None).unwrap();
+        let forms = linearise(&m);
+        let s = serde_json::to_string_pretty(&forms[0]).unwrap();
+        let m = Model::new("a/(1+exp(-k*(x-c)))", &cols, None).unwrap();
+        let logit = serde_json::to_string(&linearise(&m)[0]).unwrap();
+        assert!(logit.contains("\"transform\":\"logit\""), "{logit}");
+        let lim = serde_json::to_string(&crate::symbolic::limits::limits(&m)).unwrap();
+        assert!(lim.contains("\"direction\":\"pos_inf\""));
+        let roles = serde_json::to_string(&crate::symbolic::roles::roles(&m)).unwrap();
+        assert!(roles.contains("\"kind\":\"location\""));
+        assert!(s.contains("\"coefficients\""));
+    }
+}
