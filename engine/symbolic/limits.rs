@@ -398,7 +398,16 @@ impl Ctx<'_> {
 
     // ------------------------------------------------------------ analysis
 
+    /// Asymptotic cases of `e`; too many cases collapse to one `Unknown`.
     fn an(&self, e: &Expr, asm: &Asm) -> Cases<Asy> {
+        let out = self.an_inner(e, asm);
+        if out.len() > MAX_CASES {
+            return vec![(asm.clone(), Asy::Unknown)];
+        }
+        out
+    }
+
+    fn an_inner(&self, e: &Expr, asm: &Asm) -> Cases<Asy> {
         let one = |a: Asy| vec![(asm.clone(), a)];
         if !e.has_var(self.v) {
             return one(Asy::Form(Form::constant(e.clone())));
@@ -675,6 +684,15 @@ impl Ctx<'_> {
         let one = |a: Asy| vec![(asm.clone(), a)];
         match x {
             Asy::Form(a) => {
+                // exp-like rules (same at ±∞) hold whatever the argument does, when
+                // the argument is a Laurent polynomial in x: no case split needed
+                if let (Behaviour::ExpOfArg { scale, sign }, true) =
+                    (&rule.pos_inf, rule.pos_inf == rule.neg_inf)
+                {
+                    if let Some(f) = self.exp_form(arg, *sign) {
+                        return one(Asy::Form(f.scale(Expr::Num(*scale))));
+                    }
+                }
                 let mut out = Vec::new();
                 for (s, t) in self.tend(asm, a) {
                     match t {
@@ -1201,6 +1219,20 @@ mod tests {
             matches!(c.limit, Limit::Unknown)
                 || matches!(&c.limit, Limit::Finite { value } if value.eval(&[1.5], &[]) == 1.5)
         );
+    }
+
+    #[test]
+    fn sum_of_three_exponentials_picks_slowest_decay() {
+        let m = model("b1*exp(-b2*x) + b3*exp(-b4*x) + b5*exp(-b6*x)");
+        let ps = [1.0, 0.5, 2.0, 0.1, 3.0, 1.5];
+        let c = case_at(&m, Direction::PosInf, &ps);
+        match c.leading {
+            Leading::Exponential { coef, rate, .. } => {
+                assert_eq!(coef.eval(&ps, &[]), 2.0);
+                assert_eq!(rate.eval(&ps, &[]), -0.1);
+            }
+            l => panic!("{:?}", l),
+        }
     }
 
     #[test]
