@@ -195,21 +195,8 @@ fn failure_svg(size: (u32, u32), e: &PlotError) -> String {
     )
 }
 
-/// Escapes text for XML character data and attribute values.
-pub(crate) fn escape_xml(s: &str) -> String {
-    let mut out = String::with_capacity(s.len());
-    for c in s.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#39;"),
-            _ => out.push(c),
-        }
-    }
-    out
-}
+/// Escapes text for XML character data and attribute values (same rules as HTML).
+pub(crate) use crate::report::html::escape_html as escape_xml;
 
 /// Survey sheet as SVG: the panels (usually the six views y, 1/y, log y
 /// against x and against log x) three to a row, features drawn on each.
