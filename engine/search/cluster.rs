@@ -146,7 +146,8 @@ pub fn is_singular(j: &DMatrix<f64>) -> bool {
 
 /// Parameters of a minimum that sit at a boundary or at infinity: not finite,
 /// grown beyond 1e6× their typical scale, or whose Jacobian column (times the
-/// typical scale) has vanished against the largest one.
+/// typical scale) has vanished against the largest one. When every column
+/// vanishes the model is flat there (a plateau, not a minimum): all are listed.
 pub fn divergent_params(
     params: &[f64],
     jacobian: &DMatrix<f64>,
@@ -171,9 +172,7 @@ pub fn divergent_params(
                 .cloned()
                 .unwrap_or_else(|| ParamScale::from_value(1.0));
             let c = col(i);
-            at_infinity(params[i], &s)
-                || !c.is_finite()
-                || (largest > 0.0 && c <= VANISHING_COLUMN * largest)
+            at_infinity(params[i], &s) || !c.is_finite() || c <= VANISHING_COLUMN * largest
         })
         .collect()
 }
@@ -362,5 +361,7 @@ mod tests {
             vec![1, 2]
         );
         assert!(divergent_params(&[1.0, 2.0, 3.0], &j3b, &s).is_empty());
+        let flat = DMatrix::zeros(2, 3);
+        assert_eq!(divergent_params(&[1.0, 2.0, 3.0], &flat, &s), vec![0, 1, 2]);
     }
 }

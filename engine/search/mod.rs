@@ -26,6 +26,7 @@ mod tests;
 pub use candidates::{find_symmetries, Candidate, Origin};
 pub use outcome::{Minimum, Run, SearchOutcome};
 pub use scale::{ParamScale, SignFreedom};
+pub use symmetry::find_sign_flips;
 
 use crate::fit::lm::{LmOptions, StopReason};
 use crate::fit::Residuals;
@@ -51,6 +52,9 @@ pub struct SearchOptions {
     pub batch: usize,
     /// Iterations per leg for runs after the first batch.
     pub leg_iterations: usize,
+    /// Parameter sets whose joint change of sign leaves the model unchanged
+    /// (see [`symmetry::find_sign_flips`]): mirror-image minima are merged.
+    pub sign_flips: Vec<Vec<usize>>,
 }
 
 impl Default for SearchOptions {
@@ -63,6 +67,7 @@ impl Default for SearchOptions {
             lm: LmOptions::default(),
             batch: 8,
             leg_iterations: 8,
+            sign_flips: Vec::new(),
         }
     }
 }
@@ -108,7 +113,16 @@ pub fn search(
         .filter(|p| p.len() == n && symmetry::is_permutation(p))
         .cloned()
         .collect();
-    let group = symmetry::group(&symmetries, n);
+    let sign_flips: Vec<Vec<usize>> = opts
+        .sign_flips
+        .iter()
+        .filter(|s| !s.is_empty() && s.iter().all(|&k| k < n))
+        .cloned()
+        .collect();
+    let group = symmetry::Symmetries {
+        group: symmetry::group(&symmetries, n),
+        sign_flips,
+    };
     let cands = candidates::generate(candidates, &scales, &symmetries, opts.starts, opts.seed);
 
     // Exact fits have ssr ≈ 0: compare sums of squares absolutely far below the best start's.

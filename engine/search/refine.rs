@@ -4,7 +4,7 @@
 
 use super::cluster::{divergent_params, is_singular, scaled_gap_except};
 use super::scale::ParamScale;
-use super::symmetry::canonical_with;
+use super::symmetry::Symmetries;
 use crate::fit::lm::{levenberg_marquardt, LmOptions, LmResult, StopReason};
 use crate::fit::Residuals;
 use nalgebra::DMatrix;
@@ -92,10 +92,10 @@ pub fn permuted_columns(j: &DMatrix<f64>, perm: &[usize]) -> DMatrix<f64> {
 /// A point in canonical order with its divergent parameters.
 fn canonical_point(
     r: &LmResult,
-    group: &[Vec<usize>],
+    group: &Symmetries,
     scales: &[ParamScale],
 ) -> (Vec<f64>, Vec<usize>, Vec<usize>) {
-    let (canonical, perm) = canonical_with(group, &r.params);
+    let (canonical, perm) = group.canonical_with(&r.params);
     let divergent = divergent_params(&canonical, &permuted_columns(&r.jacobian, &perm), scales);
     (canonical, perm, divergent)
 }
@@ -104,7 +104,7 @@ fn finish(
     r: LmResult,
     iterations: usize,
     evaluations: usize,
-    group: &[Vec<usize>],
+    group: &Symmetries,
     scales: &[ParamScale],
     abandoned_into: Option<usize>,
 ) -> Refined {
@@ -146,7 +146,7 @@ pub fn refine_full(
     start: &[f64],
     lm: &LmOptions,
     scales: &[ParamScale],
-    group: &[Vec<usize>],
+    group: &Symmetries,
 ) -> Refined {
     let r = levenberg_marquardt(problem, start, lm);
     let (it, ev) = (r.iterations, r.evaluations);
@@ -166,7 +166,7 @@ pub fn refine_in_legs(
     leg: usize,
     known: &[KnownMinimum],
     scales: &[ParamScale],
-    group: &[Vec<usize>],
+    group: &Symmetries,
 ) -> Refined {
     let leg = leg.max(1);
     let mut x = start.to_vec();
@@ -241,7 +241,13 @@ mod tests {
     #[test]
     fn legs_converge_like_a_full_fit() {
         let lm = LmOptions::default();
-        let full = refine_full(&Bowl, &[50.0], &lm, &[ParamScale::from_value(3.0)], &[]);
+        let full = refine_full(
+            &Bowl,
+            &[50.0],
+            &lm,
+            &[ParamScale::from_value(3.0)],
+            &Symmetries::default(),
+        );
         let legs = refine_in_legs(
             &Bowl,
             &[50.0],
@@ -249,7 +255,7 @@ mod tests {
             2,
             &[],
             &[ParamScale::from_value(3.0)],
-            &[],
+            &Symmetries::default(),
         );
         assert!(full.converged && legs.converged);
         assert!((full.end[0] - 3.0).abs() < 1e-10);
@@ -264,14 +270,14 @@ mod tests {
         let scales = [ParamScale::from_value(3.0)];
         // Once the point is within 1 % of the known minimum at 3 and has made
         // 99.9 % of the descent, the run stops, before the fitter would.
-        let full = refine_full(&Bowl, &[3.2], &lm, &scales, &[]);
+        let full = refine_full(&Bowl, &[3.2], &lm, &scales, &Symmetries::default());
         let k = [KnownMinimum {
             id: 4,
             params: vec![3.0],
             ssr: 0.0,
             divergent: vec![],
         }];
-        let a = refine_in_legs(&Bowl, &[3.2], &lm, 1, &k, &scales, &[]);
+        let a = refine_in_legs(&Bowl, &[3.2], &lm, 1, &k, &scales, &Symmetries::default());
         assert_eq!(a.abandoned_into, Some(4));
         assert!(
             a.iterations < full.iterations,
@@ -289,7 +295,15 @@ mod tests {
             ssr: 0.0,
             divergent: vec![],
         }];
-        let b = refine_in_legs(&Bowl, &[3.02], &lm, 1, &other, &scales, &[]);
+        let b = refine_in_legs(
+            &Bowl,
+            &[3.02],
+            &lm,
+            1,
+            &other,
+            &scales,
+            &Symmetries::default(),
+        );
         assert!(b.converged && b.abandoned_into.is_none());
     }
 }

@@ -92,6 +92,78 @@ pub fn find_symmetries(model: &Model) -> Vec<Vec<usize>> {
     tried.into_iter().filter(|p| leaves_unchanged(p)).collect()
 }
 
+/// Parameter sets whose simultaneous change of sign leaves `model.rhs`
+/// unchanged (e.g. a width that enters only squared, or an amplitude and a
+/// width in a ratio), tested numerically as in [`find_symmetries`]. Tried:
+/// every single parameter, then every pair of parameters not already flippable
+/// alone. Each set is sorted; sets come in a fixed order.
+pub fn find_sign_flips(model: &Model) -> Vec<Vec<usize>> {
+    let n = model.n_params();
+    let nv = model.vars.len();
+    let mut rng = Rng::new(0x5167_F11B);
+    let points: Vec<(Vec<f64>, Vec<f64>)> = (0..TEST_POINTS)
+        .map(|_| {
+            let p = (0..n).map(|_| 0.4 + 1.2 * rng.uniform()).collect();
+            let x = (0..nv).map(|_| 0.3 + 1.6 * rng.uniform()).collect();
+            (p, x)
+        })
+        .collect();
+    let base: Vec<f64> = points.iter().map(|(p, x)| model.rhs.eval(p, x)).collect();
+    if base.iter().filter(|v| v.is_finite()).count() < TEST_POINTS / 2 {
+        return Vec::new();
+    }
+    let unchanged = |set: &[usize]| -> bool {
+        points.iter().zip(&base).all(|((p, x), &f0)| {
+            let mut q = p.clone();
+            for &k in set {
+                q[k] = -q[k];
+            }
+            let f1 = model.rhs.eval(&q, x);
+            f0.is_finite() == f1.is_finite()
+                && (!f0.is_finite()
+                    || (f0 - f1).abs() <= AGREE * (f0.abs() + f1.abs()) + f64::MIN_POSITIVE)
+        })
+    };
+    let singles: Vec<usize> = (0..n).filter(|&i| unchanged(&[i])).collect();
+    let mut out: Vec<Vec<usize>> = singles.iter().map(|&i| vec![i]).collect();
+    for i in 0..n {
+        for j in i + 1..n {
+            if !singles.contains(&i) && !singles.contains(&j) && unchanged(&[i, j]) {
+                out.push(vec![i, j]);
+            }
+        }
+    }
+    out
+}
+
+/// The symmetries of a model as the search uses them: interchangeable
+/// parameters and sign changes that leave the model unchanged.
+#[derive(Debug, Clone, Default)]
+pub struct Symmetries {
+    /// The permutation group ([`group`]), identity first; empty means none.
+    pub group: Vec<Vec<usize>>,
+    /// Sign-change sets ([`find_sign_flips`]).
+    pub sign_flips: Vec<Vec<usize>>,
+}
+
+impl Symmetries {
+    /// One representative of all mirror images of `p`: first each sign-change
+    /// set is turned so that its first parameter is not negative (sets applied
+    /// in order), then the lexicographically smallest permutation is taken.
+    /// Returns it with the permutation used (`out[i] = ±p[perm[i]]`).
+    pub fn canonical_with(&self, p: &[f64]) -> (Vec<f64>, Vec<usize>) {
+        let mut q = p.to_vec();
+        for set in &self.sign_flips {
+            if set.iter().all(|&k| k < q.len()) && set.first().is_some_and(|&k| q[k] < 0.0) {
+                for &k in set {
+                    q[k] = -q[k];
+                }
+            }
+        }
+        canonical_with(&self.group, &q)
+    }
+}
+
 /// σ(p): the point with `p[perm[i]]` in place i.
 pub fn apply(perm: &[usize], p: &[f64]) -> Vec<f64> {
     perm.iter()
@@ -255,6 +327,29 @@ mod tests {
         // No symmetry in a saturation curve.
         let q = model("a*x/(b+x)", &["x", "y"]);
         assert!(find_symmetries(&q).is_empty());
+    }
+
+    #[test]
+    fn sign_changes_that_leave_the_model_unchanged() {
+        // params: a, c, m, w. The width enters squared; a/w (with w squared
+        // elsewhere) makes (a, w) flip together only when w appears linearly.
+        let m = model("a*exp(-(x-m)^2/w^2) + c", &["x", "y"]);
+        assert_eq!(find_sign_flips(&m), vec![vec![3]]);
+        let r = model("(a/b)*exp(-0.5*((x-c)/b)^2)", &["x", "y"]);
+        assert_eq!(find_sign_flips(&r), vec![vec![0, 1]]);
+        assert!(find_sign_flips(&model("a*exp(-k*x)", &["x", "y"])).is_empty());
+        let s = Symmetries {
+            group: vec![],
+            sign_flips: vec![vec![0, 1]],
+        };
+        assert_eq!(
+            s.canonical_with(&[-1.5, -4.0, 450.0]).0,
+            vec![1.5, 4.0, 450.0]
+        );
+        assert_eq!(
+            s.canonical_with(&[1.5, -4.0, 450.0]).0,
+            vec![1.5, -4.0, 450.0]
+        );
     }
 
     #[test]
