@@ -1,2 +1,286 @@
 //! Multistart global search: candidates, parallel refinement, clustering of
 //! minima and their ranking by convergence.
+//!
+//! [`search`] refines candidate starts by Levenberg–Marquardt in parallel, in
+//! batches: the first batch gets full-length fits (so the best inferred start
+//! is always refined to convergence with the given options, polishing
+//! included); later runs go in short legs and stop early when they are clearly
+//! inside a basin already found. Results are collected in candidate order, so
+//! the outcome is the same for any number of threads. A time limit is checked
+//! only between batches; with one set, how many batches run depends on the
+//! machine's speed, and so may the outcome.
+
+pub mod candidates;
+pub mod cluster;
+pub mod outcome;
+pub mod rank;
+pub mod refine;
+pub mod rng;
+pub mod sampling;
+pub mod scale;
+pub mod symmetry;
+
+#[cfg(test)]
+mod tests;
+
+pub use candidates::{find_symmetries, Candidate, Origin};
+pub use outcome::{Minimum, Run, SearchOutcome};
+pub use scale::{ParamScale, SignFreedom};
+pub use symmetry::find_sign_flips;
+
+use crate::fit::lm::{LmOptions, StopReason};
+use crate::fit::Residuals;
+use cluster::{Basins, EndPoint, Tolerances};
+use rayon::prelude::*;
+use refine::{refine_full, refine_in_legs, KnownMinimum, Refined};
+use std::time::{Duration, Instant};
+
+/// Budgets and settings of a search.
+#[derive(Debug, Clone)]
+pub struct SearchOptions {
+    /// Number of local fits (candidate starts), inferred starts included.
+    pub starts: usize,
+    /// Seed of the quasi-random points: same seed, same outcome.
+    pub seed: u64,
+    /// Wall-time limit, checked only between batches (makes results speed-dependent).
+    pub time_limit: Option<Duration>,
+    /// How many minima to report (0 = all).
+    pub top: usize,
+    /// Options of every local fit.
+    pub lm: LmOptions,
+    /// Runs per batch (fixed, independent of the thread count, for determinism).
+    pub batch: usize,
+    /// Iterations per leg for runs after the first batch.
+    pub leg_iterations: usize,
+    /// Parameter sets whose joint change of sign leaves the model unchanged
+    /// (see [`symmetry::find_sign_flips`]): mirror-image minima are merged.
+    pub sign_flips: Vec<Vec<usize>>,
+}
+
+impl Default for SearchOptions {
+    fn default() -> Self {
+        SearchOptions {
+            starts: 64,
+            seed: 0x00F0_07E0_1D5E_ED00,
+            time_limit: None,
+            top: 0,
+            lm: LmOptions::default(),
+            batch: 8,
+            leg_iterations: 8,
+            sign_flips: Vec::new(),
+        }
+    }
+}
+
+/// Median of `v` (NaN when empty).
+fn median(mut v: Vec<f64>) -> f64 {
+    if v.is_empty() {
+        return f64::NAN;
+    }
+    v.sort_by(|a, b| a.total_cmp(b));
+    let k = v.len() / 2;
+    if v.len() % 2 == 1 {
+        v[k]
+    } else {
+        0.5 * (v[k - 1] + v[k])
+    }
+}
+
+/// Searches for the minima of `problem`'s sum of squares from `candidates`
+/// (ranked inferred starts, best first) and quasi-random points around them in
+/// the parameters' natural `scales`, using the parameter permutations
+/// `symmetries` (see [`find_symmetries`]) to merge mirror-image minima. Returns
+/// the distinct minima, ranked, and every run. `names` label the parameters;
+/// `scales` of the wrong length are replaced by [`ParamScale::from_value`] of
+/// the first candidate.
+pub fn search(
+    problem: &dyn Residuals,
+    names: &[String],
+    candidates: &[Vec<f64>],
+    scales: &[ParamScale],
+    symmetries: &[Vec<usize>],
+    opts: &SearchOptions,
+) -> SearchOutcome {
+    let clock = Instant::now();
+    let n = problem.n_params();
+    let first = candidates
+        .iter()
+        .find(|c| c.len() == n)
+        .map(|c| c.as_slice());
+    let scales = scale::scales_or_fallback(scales, first, n);
+    let symmetries: Vec<Vec<usize>> = symmetries
+        .iter()
+        .filter(|p| p.len() == n && symmetry::is_permutation(p))
+        .cloned()
+        .collect();
+    let sign_flips: Vec<Vec<usize>> = opts
+        .sign_flips
+        .iter()
+        .filter(|s| !s.is_empty() && s.iter().all(|&k| k < n))
+        .cloned()
+        .collect();
+    let group = symmetry::Symmetries {
+        group: symmetry::group(&symmetries, n),
+        sign_flips,
+    };
+    let cands = candidates::generate(candidates, &scales, &symmetries, opts.starts, opts.seed);
+
+    // Exact fits have ssr ≈ 0: compare sums of squares absolutely far below the best start's.
+    let start_ssr = cands
+        .iter()
+        .take(opts.batch.max(1))
+        .map(|c| refine::sum_of_squares(problem, &c.point))
+        .fold(f64::INFINITY, f64::min);
+    let tol = Tolerances {
+        ssr_atol: if start_ssr.is_finite() {
+            1e-20 * start_ssr
+        } else {
+            0.0
+        },
+        ..Tolerances::default()
+    };
+
+    let batch = opts.batch.max(1);
+    let mut basins = Basins::default();
+    let mut done: Vec<(Refined, bool)> = Vec::new();
+    let mut stopped_by_time = false;
+    for (b, chunk) in cands.chunks(batch).enumerate() {
+        if b > 0 && opts.time_limit.is_some_and(|t| clock.elapsed() >= t) {
+            stopped_by_time = true;
+            break;
+        }
+        let known: Vec<KnownMinimum> = basins
+            .list
+            .iter()
+            .enumerate()
+            .map(|(id, k)| KnownMinimum {
+                id,
+                params: k.params.clone(),
+                ssr: k.ssr,
+                divergent: k.divergent.clone(),
+            })
+            .collect();
+        let full = b == 0;
+        let results: Vec<Refined> = chunk
+            .par_iter()
+            .map(|c| {
+                if full {
+                    refine_full(problem, &c.point, &opts.lm, &scales, &group)
+                } else {
+                    refine_in_legs(
+                        problem,
+                        &c.point,
+                        &opts.lm,
+                        opts.leg_iterations,
+                        &known,
+                        &scales,
+                        &group,
+                    )
+                }
+            })
+            .collect();
+        for r in results {
+            let idx = done.len();
+            if let Some(k) = r.abandoned_into {
+                basins.credit(k, idx);
+            } else if r.ssr.is_finite() && r.end.iter().all(|v| v.is_finite()) {
+                // Converged runs, and runs that used up their budget on the way to infinity.
+                let out_of_budget = matches!(
+                    r.stop,
+                    StopReason::MaxIterations | StopReason::MaxEvaluations
+                );
+                if r.converged || (out_of_budget && !r.divergent.is_empty()) {
+                    let p = EndPoint {
+                        params: &r.canonical,
+                        ssr: r.ssr,
+                        divergent: &r.divergent,
+                        singular: r.singular,
+                    };
+                    basins.add(idx, &p, &scales, &tol);
+                }
+            }
+            done.push((r, full));
+        }
+    }
+
+    let total = done.len();
+    let minima: Vec<Minimum> = basins
+        .list
+        .iter()
+        .map(|basin| {
+            let best = &done[basin.best_run].0;
+            let fastest = basin
+                .members
+                .iter()
+                .min_by_key(|&&i| (done[i].0.iterations, i))
+                .copied()
+                .unwrap_or(basin.best_run);
+            let reached_by = basin.members.len() + basin.credited.len();
+            let m = Minimum {
+                rank: 0,
+                params: basin.params.clone(),
+                ssr: basin.ssr,
+                share: reached_by as f64 / total.max(1) as f64,
+                iterations_median: median(
+                    basin
+                        .members
+                        .iter()
+                        .map(|&i| done[i].0.iterations as f64)
+                        .collect(),
+                ),
+                condition: cluster::condition_number(&best.jacobian),
+                divergent: best.divergent.clone(),
+                start: cands[fastest].point.clone(),
+                reached_by,
+                credited: basin.credited.len(),
+            };
+            m
+        })
+        .collect();
+    let order = rank::ranking(&minima);
+    let mut rank_of = vec![0usize; minima.len()];
+    for (k, &i) in order.iter().enumerate() {
+        rank_of[i] = k + 1;
+    }
+    let mut ranked: Vec<Minimum> = order
+        .iter()
+        .map(|&i| Minimum {
+            rank: rank_of[i],
+            ..minima[i].clone()
+        })
+        .collect();
+    let mut minimum_of_run: Vec<Option<usize>> = vec![None; total];
+    for (id, basin) in basins.list.iter().enumerate() {
+        for &i in basin.members.iter().chain(&basin.credited) {
+            minimum_of_run[i] = Some(rank_of[id]);
+        }
+    }
+    let runs: Vec<Run> = done
+        .into_iter()
+        .enumerate()
+        .map(|(i, (r, full))| Run {
+            index: i,
+            origin: cands[i].origin.clone(),
+            start: cands[i].point.clone(),
+            end: r.end,
+            ssr: r.ssr,
+            iterations: r.iterations,
+            evaluations: r.evaluations,
+            stop: r.stop,
+            converged: r.converged,
+            full_length: full,
+            abandoned_into: r.abandoned_into.map(|k| rank_of[k]),
+            minimum: minimum_of_run[i],
+        })
+        .collect();
+    if opts.top > 0 {
+        ranked.truncate(opts.top);
+    }
+    SearchOutcome {
+        names: names.to_vec(),
+        minima: ranked,
+        candidates_tried: total,
+        stopped_by_time,
+        runs,
+    }
+}
