@@ -1,0 +1,166 @@
+//! Helpers shared by the fuzz targets: an expression generator driven by the
+//! fuzzer's bytes, points to evaluate at, and a finite-difference check that
+//! knows when it is itself reliable.
+//!
+//! Targets live in `fuzz_targets/`; each one is a thin `fuzz_target!` around a
+//! `check_*` function here or in the target file. A future `read_table`
+//! target (data reader) only needs a new file there and a `[[bin]]` entry.
+
+use arbitrary::{Result, Unstructured};
+use foothold::symbolic::expr::{BinOp, Expr, Func};
+
+/// Numbers the generator puts in leaves: the constants of everyday formulas
+/// plus edge cases (zero, huge, tiny, negative).
+pub const CONSTS: [f64; 16] = [
+    0.0, 1.0, 2.0, 3.0, 0.5, -1.0, -2.0, 0.25, 10.0, 1e-3, 1e3, 1e308, 1e-300, -0.5, 1.5, 4.0,
+];
+
+/// Largest tree the generator builds (nodes), so derivatives stay small.
+pub const MAX_NODES: usize = 60;
+
+/// Builds an expression over `n_params` parameters and `n_vars` variables from
+/// the fuzzer's bytes; depth and size are bounded.
+pub fn gen_expr(u: &mut Unstructured, n_params: usize, n_vars: usize) -> Result<Expr> {
+    let mut budget = MAX_NODES;
+    gen(u, 6, &mut budget, n_params, n_vars)
+}
+
+fn gen(
+    u: &mut Unstructured,
+    depth: usize,
+    budget: &mut usize,
+    n_params: usize,
+    n_vars: usize,
+) -> Result<Expr> {
+    *budget = budget.saturating_sub(1);
+    let leaf_only = depth == 0 || *budget == 0 || u.is_empty();
+    let choice: u8 = if leaf_only {
+        u.int_in_range(0..=3)?
+    } else {
+        u.int_in_range(0..=9)?
+    };
+    Ok(match choice {
+        0 => {
+            let i: usize = u.int_in_range(0..=CONSTS.len())?;
+            match CONSTS.get(i) {
+                Some(c) => Expr::Num(*c),
+                // Any finite number the bytes spell.
+                None => {
+                    let v = f64::from_bits(u.arbitrary::<u64>()?);
+                    Expr::Num(if v.is_finite() { v } else { 1.0 })
+                }
+            }
+        }
+        1 if n_vars > 0 => Expr::Var(u.int_in_range(0..=n_vars - 1)?),
+        1 | 2 | 3 if n_params > 0 => Expr::Param(u.int_in_range(0..=n_params - 1)?),
+        1..=3 => Expr::Num(1.0),
+        4 => Expr::neg(gen(u, depth - 1, budget, n_params, n_vars)?),
+        5..=7 => {
+            let op = *u.choose(&[BinOp::Add, BinOp::Sub, BinOp::Mul, BinOp::Div, BinOp::Pow])?;
+            let a = gen(u, depth - 1, budget, n_params, n_vars)?;
+            let b = gen(u, depth - 1, budget, n_params, n_vars)?;
+            Expr::Bin(op, Box::new(a), Box::new(b))
+        }
+        _ => {
+            let f = *u.choose(&Func::ALL)?;
+            Expr::call(f, gen(u, depth - 1, budget, n_params, n_vars)?)
+        }
+    })
+}
+
+/// A coordinate of a point: one byte mapped to [-8, 8) in steps of 1/16, so
+/// that exact zeros, integers and halves are common.
+pub fn coord(u: &mut Unstructured) -> Result<f64> {
+    Ok(f64::from(u.arbitrary::<i8>()?) / 16.0)
+}
+
+/// True when `e` and every subexpression of it is finite at the point: a
+/// finite value computed through an infinity (`0.5^(1/0)`) is not a smooth point.
+pub fn all_finite(e: &Expr, params: &[f64], vars: &[f64]) -> bool {
+    e.eval(params, vars).is_finite()
+        && match e {
+            Expr::Num(_) | Expr::Var(_) | Expr::Param(_) => true,
+            Expr::Neg(a) | Expr::Call(_, a) => all_finite(a, params, vars),
+            Expr::Bin(_, a, b) => all_finite(a, params, vars) && all_finite(b, params, vars),
+        }
+}
+
+/// Two values the same bit for bit, or both NaN.
+pub fn same_bits(a: f64, b: f64) -> bool {
+    a.to_bits() == b.to_bits() || (a.is_nan() && b.is_nan())
+}
+
+/// Outcome of a finite-difference comparison.
+#[derive(Debug, Clone, PartialEq)]
+pub enum FdCheck {
+    /// The difference quotient was not reliable here (not finite nearby, a
+    /// kink or pole, the h and h/2 estimates disagreeing): nothing is claimed.
+    Unreliable,
+    /// Reliable and the symbolic derivative agrees.
+    Agrees,
+    /// Reliable but the derivative is wrong or not finite; the message says how.
+    Fails(String),
+}
+
+/// Central differences of `f` in coordinate `k` of the point `(params, vars)`
+/// (parameters first, then variables) with steps h and h/2, Richardson
+/// extrapolated (Richardson 1911; Press et al., Numerical Recipes, §5.7).
+/// When the formula and every subexpression are finite at the point, the four
+/// shifted values are finite and the two estimates agree to 1e-3, the check is
+/// reliable, and then `sym` must be finite and match.
+pub fn fd_check(e: &Expr, params: &[f64], vars: &[f64], k: usize, sym: f64) -> FdCheck {
+    if !all_finite(e, params, vars) {
+        return FdCheck::Unreliable;
+    }
+    let np = params.len();
+    let x = if k < np { params[k] } else { vars[k - np] };
+    let h = 1e-4 * x.abs().max(1.0);
+    let at = |dx: f64| {
+        let mut p = params.to_vec();
+        let mut v = vars.to_vec();
+        if k < np {
+            p[k] = x + dx;
+        } else {
+            v[k - np] = x + dx;
+        }
+        (e.eval(&p, &v), all_finite(e, &p, &v))
+    };
+    let shifted = [at(h), at(-h), at(h / 2.0), at(-h / 2.0)];
+    if shifted.iter().any(|(v, ok)| !ok || !v.is_finite()) {
+        return FdCheck::Unreliable;
+    }
+    let vals: Vec<f64> = shifted.iter().map(|s| s.0).collect();
+    let f0 = e.eval(params, vars);
+    let d1 = (vals[0] - vals[1]) / (2.0 * h);
+    let d2 = (vals[2] - vals[3]) / h;
+    if !d1.is_finite() || !d2.is_finite() || (d1 - d2).abs() > 1e-3 * d2.abs() + 1e-9 {
+        return FdCheck::Unreliable;
+    }
+    if !sym.is_finite() {
+        return FdCheck::Fails(format!(
+            "derivative is {sym} where the formula ({f0}) and its finite differences \
+             ({d1}, {d2}) are finite and agree"
+        ));
+    }
+    if d1 == 0.0 && d2 == 0.0 {
+        // Exactly flat computed function: a saturated intermediate (tanh(u)
+        // rounded to 1) quantises it, so a nonzero slope cannot be checked.
+        return FdCheck::Agrees;
+    }
+    let rich = d2 + (d2 - d1) / 3.0;
+    let fmax = vals.iter().fold(f0.abs(), |m, v| m.max(v.abs()));
+    let roundoff = 1e-13 * fmax.max(1.0) / h;
+    let tol = (d1 - d2).abs() + 1e-7 * d2.abs().max(1.0) + roundoff;
+    if (sym - rich).abs() > tol {
+        return FdCheck::Fails(format!(
+            "derivative {sym} vs finite difference {rich} (h-estimates {d1}, {d2}, tol {tol})"
+        ));
+    }
+    FdCheck::Agrees
+}
+
+/// The fuzzer's bytes as formula text: valid UTF-8 as is, anything else
+/// converted lossily (invalid sequences become U+FFFD).
+pub fn text(data: &[u8]) -> String {
+    String::from_utf8_lossy(data).into_owned()
+}
