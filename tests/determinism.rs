@@ -16,7 +16,9 @@ fn logistic_problem() -> Problem {
     let y: Vec<f64> = t
         .iter()
         .enumerate()
-        .map(|(i, t)| 8.0 / (1.0 + (-1.3 * (t - 4.0)).exp()) + 0.05 * ((i * 37 % 11) as f64 - 5.0) / 5.0)
+        .map(|(i, t)| {
+            8.0 / (1.0 + (-1.3 * (t - 4.0)).exp()) + 0.05 * ((i * 37 % 11) as f64 - 5.0) / 5.0
+        })
         .collect();
     Problem::from_columns(m, vec![t], y).expect("problem builds")
 }
@@ -67,7 +69,8 @@ fn thread_pools_of_one_and_two_give_the_same_bits() {
         let inside = pool.install(|| run(&p));
         assert_eq!(bits(&inside), reference, "{threads} thread(s)");
         // Eight fits at once sharing the problem.
-        let many: Vec<LmResult> = pool.install(|| (0..8).into_par_iter().map(|_| run(&p)).collect());
+        let many: Vec<LmResult> =
+            pool.install(|| (0..8).into_par_iter().map(|_| run(&p)).collect());
         for r in &many {
             assert_eq!(bits(r), reference, "{threads} thread(s), parallel fits");
         }

@@ -396,7 +396,12 @@ mod tests {
         assert_eq!(shown("1e308*a"), "1e308*a");
         assert_eq!(shown("2.5e-300*a"), "2.5e-300*a");
         assert_eq!(shown("0.001*a + 123456"), "0.001*a + 123456");
-        for t in ["a+(b+c)", "(-0)^-2*a", "1.7976931348623157e308*a", "5e-324*a"] {
+        for t in [
+            "a+(b+c)",
+            "(-0)^-2*a",
+            "1.7976931348623157e308*a",
+            "5e-324*a",
+        ] {
             let p = parse_formula(t).unwrap();
             let q = parse_formula(&p.rhs.display(&p.names, &[]).to_string()).unwrap();
             assert_eq!(p.rhs, q.rhs, "{t}");

@@ -39,7 +39,9 @@ fn formula(u: &mut Unstructured) -> Result<Option<(Expr, usize, usize)>> {
 fn check(u: &mut Unstructured) -> Result<()> {
     // Input layout: N_POINTS × MAX_COORDS coordinate bytes, a mode byte
     // (odd: generated tree; even: formula text), then the tree's bytes or the text.
-    let block: Vec<f64> = (0..N_POINTS * MAX_COORDS).map(|_| coord(u)).collect::<Result<_>>()?;
+    let block: Vec<f64> = (0..N_POINTS * MAX_COORDS)
+        .map(|_| coord(u))
+        .collect::<Result<_>>()?;
     let Some((e, np, nv)) = formula(u)? else {
         return Ok(());
     };
@@ -56,11 +58,15 @@ fn check(u: &mut Unstructured) -> Result<()> {
     // Regrouping numeric factors (c1*(x*(c2*y)) → (c1*c2)*(x*y)) changes which
     // intermediate products overflow; with constants beyond 1e±100 a finite
     // value may become infinite, which the simplifier does not promise against.
-    let extreme = e.any(&|n| matches!(n, Expr::Num(c) if c.abs() > 1e100 || (*c != 0.0 && c.abs() < 1e-100)));
+    let extreme =
+        e.any(&|n| matches!(n, Expr::Num(c) if c.abs() > 1e100 || (*c != 0.0 && c.abs() < 1e-100)));
     for (p, v) in points.iter().filter(|_| !extreme) {
         if all_finite(&e, p, v) {
             let (a, b) = (e.eval(p, v), s.eval(p, v));
-            assert!(b.is_finite(), "simplified {s:?} is {b} where {e:?} is {a} at {p:?} {v:?}");
+            assert!(
+                b.is_finite(),
+                "simplified {s:?} is {b} where {e:?} is {a} at {p:?} {v:?}"
+            );
         }
     }
 
@@ -96,13 +102,19 @@ fn check(u: &mut Unstructured) -> Result<()> {
     // All points' variables as rows of one call with the first point's parameters.
     if nv > 0 {
         let p0 = &points[0].0;
-        let cols: Vec<Vec<f64>> = (0..nv).map(|j| points.iter().map(|q| q.1[j]).collect()).collect();
+        let cols: Vec<Vec<f64>> = (0..nv)
+            .map(|j| points.iter().map(|q| q.1[j]).collect())
+            .collect();
         let refs: Vec<&[f64]> = cols.iter().map(|c| c.as_slice()).collect();
         let got = tape.eval_columns(p0, &refs, N_POINTS);
         for (k, o) in outputs.iter().enumerate() {
             for (i, q) in points.iter().enumerate() {
                 let tree = o.eval(p0, &q.1);
-                assert!(same_bits(got[k][i], tree), "tape column {k} row {i}: {} vs {tree}", got[k][i]);
+                assert!(
+                    same_bits(got[k][i], tree),
+                    "tape column {k} row {i}: {} vs {tree}",
+                    got[k][i]
+                );
             }
         }
     }

@@ -63,7 +63,10 @@ fuzz_target!(|data: &[u8]| {
                 // Printing may add parentheses or digits; only the size limits may refuse it.
                 let limit = shown.chars().count() > MAX_FORMULA_CHARS
                     || e.message.contains(&MAX_DEPTH.to_string());
-                assert!(limit, "printed form {shown:?} of {text:?} does not parse: {e}");
+                assert!(
+                    limit,
+                    "printed form {shown:?} of {text:?} does not parse: {e}"
+                );
                 continue;
             }
         };
