@@ -71,13 +71,16 @@ fn d(e: &Expr, w: Wrt) -> Expr {
                     if is_zero(&db) {
                         bin(BinOp::Div, da, b.clone())
                     } else {
-                        // (a'b - ab')/b^2
+                        // (a' - (a/b) b')/b rather than (a'b - ab')/b^2: b^2 and
+                        // a'b overflow or underflow long before a/b does
+                        // (2/exp(sinh(a)) at a = 7.25 gave inf/inf; found by fuzzing).
+                        // a/b is the formula's own node, shared in the tape.
                         let num = bin(
                             BinOp::Sub,
-                            bin(BinOp::Mul, da, b.clone()),
-                            bin(BinOp::Mul, a.clone(), db),
+                            da,
+                            bin(BinOp::Mul, bin(BinOp::Div, a.clone(), b.clone()), db),
                         );
-                        bin(BinOp::Div, num, bin(BinOp::Pow, b.clone(), n(2.0)))
+                        bin(BinOp::Div, num, b.clone())
                     }
                 }
                 BinOp::Pow => {
@@ -181,7 +184,7 @@ mod tests {
         assert_eq!(dd("2^a", "a"), "0.6931471805599453*2^a");
         assert_eq!(dd("log(x)", "x"), "1/x");
         assert_eq!(dd("sin(2*x)", "x"), "2*cos(2*x)");
-        assert_eq!(dd("1/x", "x"), "-1/x^2");
+        assert_eq!(dd("1/x", "x"), "-1/x/x");
         assert_eq!(dd("abs(x)", "x"), "x/abs(x)");
     }
 
@@ -216,6 +219,19 @@ mod tests {
         vals[a] = 1.5;
         vals[q.names.iter().position(|n| n == "b").unwrap()] = 2.5;
         assert_eq!(diff_param(&q.rhs, a).eval(&vals, &[]), 0.0);
+    }
+
+    /// Regression (found by fuzzing): the quotient rule over b^2 overflowed or
+    /// underflowed where a/b itself is an ordinary number.
+    #[test]
+    fn quotient_rule_does_not_square_the_denominator() {
+        // d/db a/b at a = b = 1e200 is −1e-200; b^2 = inf made it −0.
+        let p = parse_formula("a/b").unwrap();
+        assert_eq!(diff_param(&p.rhs, 1).eval(&[1e200, 1e200], &[]), -1e-200);
+        // d/db a/(1e-300 − b) at a = 1e-300, b = 0 is 1e300; (1e-300)^2 = 0 made it inf.
+        let q = parse_formula("a/(1e-300 - b)").unwrap();
+        let got = diff_param(&q.rhs, 1).eval(&[1e-300, 0.0], &[]);
+        assert!((got - 1e300).abs() <= 1e-15 * 1e300, "{got}");
     }
 
     #[test]

@@ -107,6 +107,36 @@ pub fn on_inner_boundary(e: &Expr, params: &[f64], vars: &[f64]) -> bool {
     })
 }
 
+/// True when some node of `d` overflows: finite operands, an infinite result,
+/// and not a pole (division by zero, log 0, 0 to a negative power). The slope
+/// of exp(sinh(a)) at a = 7.25 is ≈ 3.9e308 although 2/exp(sinh(a)) and its
+/// own slope are ordinary numbers: a symbolic derivative cannot avoid that.
+pub fn overflows(d: &Expr, params: &[f64], vars: &[f64]) -> bool {
+    d.any(&|n| {
+        let v = n.eval(params, vars);
+        if !v.is_infinite() {
+            return false;
+        }
+        match n {
+            Expr::Bin(op, a, b) => {
+                let (x, y) = (a.eval(params, vars), b.eval(params, vars));
+                x.is_finite()
+                    && y.is_finite()
+                    && match op {
+                        BinOp::Div => y != 0.0,
+                        BinOp::Pow => x != 0.0,
+                        _ => true,
+                    }
+            }
+            Expr::Call(f, a) => {
+                let x = a.eval(params, vars);
+                x.is_finite() && matches!(f, Func::Exp | Func::Sinh | Func::Cosh)
+            }
+            _ => false,
+        }
+    })
+}
+
 /// Largest magnitude of any subexpression of `e` at the point.
 pub fn largest_intermediate(e: &Expr, params: &[f64], vars: &[f64]) -> f64 {
     let here = e.eval(params, vars).abs();
