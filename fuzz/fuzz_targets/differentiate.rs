@@ -10,7 +10,7 @@
 use arbitrary::{Result, Unstructured};
 use foothold::symbolic::expr::Expr;
 use foothold::symbolic::{diff_param, diff_var, simplify, Model, Tape};
-use foothold_fuzz::{all_finite, overflows, coord, fd_check, gen_expr, same_bits, FdCheck};
+use foothold_fuzz::{all_finite, coord, fd_check, gen_expr, overflows, same_bits, FdCheck};
 use libfuzzer_sys::fuzz_target;
 
 /// Longest formula text taken (characters); derivatives grow with size.
