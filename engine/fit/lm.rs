@@ -33,8 +33,8 @@ pub struct LmOptions {
     /// Most Gauss–Newton polishing steps after the trust-region loop (0 = none).
     pub polish_steps: usize,
     /// Typical size of the response (e.g. ‖y‖): the fit counts as exact when
-    /// ‖r‖ ≤ 1e-13·scale. `None` uses ‖r‖ at the start, which overstates
-    /// exactness when the start is very far off.
+    /// ‖r‖ ≤ 1e-13·scale. `None` asks the problem ([`Residuals::response_scale`]),
+    /// then falls back to ‖r‖ at the start, which overstates exactness far off.
     pub zero_residual_scale: Option<f64>,
 }
 
@@ -536,9 +536,16 @@ pub fn levenberg_marquardt(problem: &dyn Residuals, start: &[f64], opts: &LmOpti
     }
 
     let mut stop = stop;
+    // The response's own size when known: ‖r‖ at a far start (1e217 from an
+    // exp(500) overshoot) would call any end point "exact" (found by fuzzing).
     let scale = opts
         .zero_residual_scale
         .filter(|s| s.is_finite() && *s >= 0.0)
+        .or_else(|| {
+            problem
+                .response_scale()
+                .filter(|s| s.is_finite() && *s >= 0.0)
+        })
         .unwrap_or(fnorm0);
     if stop.is_converged() && (fnorm == 0.0 || fnorm <= 1e-13 * scale) {
         stop = StopReason::ZeroResidual;
@@ -803,6 +810,39 @@ mod tests {
         assert!(!r.converged, "{:?} at {:?}", r.stop, r.params);
         assert_eq!(r.stop, StopReason::Stalled);
         assert!(r.params[0] <= 1.0 && r.params[0] > 0.99, "{:?}", r.params);
+    }
+
+    /// r = (1 − p, −1 − p): the best fit p = 0 leaves ‖r‖ = √2; the response is (1, −1).
+    struct TwoPoints;
+    impl Residuals for TwoPoints {
+        fn n_obs(&self) -> usize {
+            2
+        }
+        fn n_params(&self) -> usize {
+            1
+        }
+        fn residuals(&self, p: &[f64], r: &mut [f64]) {
+            r[0] = 1.0 - p[0];
+            r[1] = -1.0 - p[0];
+        }
+        fn jacobian(&self, _p: &[f64], j: &mut DMatrix<f64>) {
+            j[(0, 0)] = -1.0;
+            j[(1, 0)] = -1.0;
+        }
+        fn response_scale(&self) -> Option<f64> {
+            Some(2f64.sqrt())
+        }
+    }
+
+    /// Regression (found by fuzzing): from a far start, "exact fit" was judged
+    /// against ‖r‖ there (1e15), so ‖r‖ = √2 counted as zero.
+    #[test]
+    fn far_start_does_not_make_a_residual_look_zero() {
+        let r = levenberg_marquardt(&TwoPoints, &[1e15], &LmOptions::default());
+        assert!(r.converged, "{:?}", r.stop);
+        assert_ne!(r.stop, StopReason::ZeroResidual);
+        assert!(r.params[0].abs() < 1e-3, "{:?}", r.params);
+        assert!((r.ssr - 2.0).abs() < 1e-6, "{}", r.ssr);
     }
 
     /// Fewer observations than parameters: r = y − (a + b), one row.

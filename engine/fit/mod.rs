@@ -20,4 +20,9 @@ pub trait Residuals: Sync {
     fn residuals(&self, p: &[f64], r: &mut [f64]);
     /// Writes ∂r/∂p into `j` (`n_obs` × `n_params`).
     fn jacobian(&self, p: &[f64], j: &mut DMatrix<f64>);
+    /// Typical size of the response (e.g. ‖y‖), against which a fit counts as
+    /// exact; `None` when unknown (the fitter then falls back to ‖r‖ at the start).
+    fn response_scale(&self) -> Option<f64> {
+        None
+    }
 }

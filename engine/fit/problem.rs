@@ -1,6 +1,7 @@
 //! A model bound to a dataset as a least-squares problem: response (after the
 //! left-hand transform) minus the compiled right-hand side, with its Jacobian.
 
+use super::trust::enorm;
 use super::Residuals;
 use crate::data::Dataset;
 use crate::symbolic::diff::diff_param;
@@ -208,6 +209,9 @@ impl Residuals for Problem {
         for (ri, yi) in r.iter_mut().zip(&self.y) {
             *ri = yi - *ri;
         }
+    }
+    fn response_scale(&self) -> Option<f64> {
+        Some(enorm(&self.y))
     }
     fn jacobian(&self, p: &[f64], j: &mut DMatrix<f64>) {
         let (n, np) = (self.n_obs(), self.n_params());

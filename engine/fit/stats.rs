@@ -195,6 +195,20 @@ pub fn summarize(names: &[String], result: &LmResult) -> FitSummary {
             bad_se.join(", ")
         ));
     }
+    // A finite but huge standard error can still overflow the interval
+    // (t·se beyond 1.8e308); say so rather than print ±inf silently (found by fuzzing).
+    let bad_ci: Vec<&str> = parameters
+        .iter()
+        .filter(|e| e.std_error.is_finite() && dof > 0)
+        .filter(|e| !e.ci_low.is_finite() || !e.ci_high.is_finite())
+        .map(|e| e.name.as_str())
+        .collect();
+    if !bad_ci.is_empty() {
+        warnings.push(format!(
+            "confidence intervals overflow (standard errors near the largest number) for: {}",
+            bad_ci.join(", ")
+        ));
+    }
 
     FitSummary {
         parameters,
@@ -282,6 +296,35 @@ fn scaled_inverse(j: &DMatrix<f64>) -> Option<ScaledInverse> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Regression (found by fuzzing): se ≈ 6e307 is finite but t·se is not;
+    /// the ±inf interval used to come without a warning.
+    #[test]
+    fn overflowing_interval_is_flagged() {
+        let result = LmResult {
+            params: vec![0.0],
+            ssr: 1.875e307,
+            residuals: vec![1e153, 1e153, 1e153],
+            jacobian: DMatrix::from_column_slice(3, 1, &[-3e-155, -3e-155, -3e-155]),
+            iterations: 1,
+            evaluations: 2,
+            stop: StopReason::SmallReduction,
+            converged: true,
+            jacobian_repairs: 0,
+            polish_steps: 0,
+            rejected_non_finite: 0,
+        };
+        let s = summarize(&["a".to_string()], &result);
+        assert!(s.parameters[0].std_error.is_finite());
+        assert!(s.parameters[0].ci_high.is_infinite());
+        assert!(
+            s.warnings
+                .iter()
+                .any(|w| w.contains("confidence intervals overflow") && w.ends_with(": a")),
+            "{:?}",
+            s.warnings
+        );
+    }
     use crate::fit::lm::{levenberg_marquardt, LmOptions, StopReason};
     use crate::fit::Residuals;
 

@@ -38,6 +38,16 @@ fn n(v: f64) -> Expr {
     Expr::Num(v)
 }
 
+/// `u + 0^|u|`: equal to `u` except at u = 0 (±0), where it is 1, so that
+/// `log` of it is 0 there. A positive number needs no guard.
+fn guard_zero(u: &Expr) -> Expr {
+    if matches!(u, Expr::Num(v) if *v > 0.0) {
+        return u.clone();
+    }
+    let zero_pow = bin(BinOp::Pow, n(0.0), call(Func::Abs, u.clone()));
+    bin(BinOp::Add, u.clone(), zero_pow)
+}
+
 /// The derivative of `e`; operands of `e` are assumed simplified.
 fn d(e: &Expr, w: Wrt) -> Expr {
     match e {
@@ -61,13 +71,16 @@ fn d(e: &Expr, w: Wrt) -> Expr {
                     if is_zero(&db) {
                         bin(BinOp::Div, da, b.clone())
                     } else {
-                        // (a'b - ab')/b^2
+                        // (a' - (a/b) b')/b rather than (a'b - ab')/b^2: b^2 and
+                        // a'b overflow or underflow long before a/b does
+                        // (2/exp(sinh(a)) at a = 7.25 gave inf/inf; found by fuzzing).
+                        // a/b is the formula's own node, shared in the tape.
                         let num = bin(
                             BinOp::Sub,
-                            bin(BinOp::Mul, da, b.clone()),
-                            bin(BinOp::Mul, a.clone(), db),
+                            da,
+                            bin(BinOp::Mul, bin(BinOp::Div, a.clone(), b.clone()), db),
                         );
-                        bin(BinOp::Div, num, bin(BinOp::Pow, b.clone(), n(2.0)))
+                        bin(BinOp::Div, num, b.clone())
                     }
                 }
                 BinOp::Pow => {
@@ -81,14 +94,24 @@ fn d(e: &Expr, w: Wrt) -> Expr {
                         // 0^w is piecewise constant in w (0, 1 or inf): no slope.
                         n(0.0)
                     } else {
-                        // d(u^w) = u^w * (w' log u + w u'/u)
-                        let t1 = bin(BinOp::Mul, db, call(Func::Log, a.clone()));
+                        // d(u^w) = w' u^w log u + w u^(w-1) u'. Written this way
+                        // (not u^w (w' log u + w u'/u)) so that u = 0 gives a finite
+                        // slope where one exists: 0^w log 0 is 0·(−∞), so the log is
+                        // guarded as log(u + 0^|u|), which is log(u) for u ≠ 0 and
+                        // 0 at u = 0 (x^b at x = 0, found by fuzzing).
+                        let t1 = bin(
+                            BinOp::Mul,
+                            db,
+                            bin(BinOp::Mul, e.clone(), call(Func::Log, guard_zero(a))),
+                        );
                         let t2 = if is_zero(&da) {
                             n(0.0)
                         } else {
-                            bin(BinOp::Div, bin(BinOp::Mul, b.clone(), da), a.clone())
+                            let lowered =
+                                bin(BinOp::Pow, a.clone(), bin(BinOp::Sub, b.clone(), n(1.0)));
+                            bin(BinOp::Mul, bin(BinOp::Mul, b.clone(), lowered), da)
                         };
-                        bin(BinOp::Mul, e.clone(), bin(BinOp::Add, t1, t2))
+                        bin(BinOp::Add, t1, t2)
                     }
                 }
             }
@@ -157,10 +180,11 @@ mod tests {
         assert_eq!(dd("a*exp(-b*x)", "a"), "exp(-(b*x))");
         assert_eq!(dd("a*exp(-b*x)", "b"), "-(a*(exp(-(b*x))*x))");
         assert_eq!(dd("x^3", "x"), "3*x^2");
-        assert_eq!(dd("x^a", "a"), "x^a*log(x)");
+        assert_eq!(dd("x^a", "a"), "x^a*log(x + 0^abs(x))");
+        assert_eq!(dd("2^a", "a"), "0.6931471805599453*2^a");
         assert_eq!(dd("log(x)", "x"), "1/x");
         assert_eq!(dd("sin(2*x)", "x"), "2*cos(2*x)");
-        assert_eq!(dd("1/x", "x"), "-1/x^2");
+        assert_eq!(dd("1/x", "x"), "-1/x/x");
         assert_eq!(dd("abs(x)", "x"), "x/abs(x)");
     }
 
@@ -173,6 +197,41 @@ mod tests {
         vals[a] = 1.0;
         vals[1 - a] = -2.0;
         assert_eq!(diff_param(&p.rhs, a).eval(&vals, &[]), -24.0);
+    }
+
+    /// Regression (found by fuzzing): d/db x^b at x = 0 was 0^b·log(0) = NaN;
+    /// the function is 0 for every b > 0, so the slope is 0.
+    #[test]
+    fn power_with_a_zero_base_has_a_finite_slope() {
+        let p = parse_formula("x^b").unwrap();
+        let b = p.names.iter().position(|n| n == "b").unwrap();
+        let db = diff_param(&p.rhs, b);
+        assert_eq!(db.eval(&[0.0, 0.3125], &[]), 0.0);
+        assert_eq!(db.eval(&[-0.0, 2.5], &[]), 0.0);
+        // Elsewhere it is still x^b·log(x).
+        let v = db.eval(&[2.0, 1.5], &[]);
+        assert!((v - 2f64.powf(1.5) * 2f64.ln()).abs() < 1e-15, "{v}");
+        assert!(db.eval(&[-2.0, 1.5], &[]).is_nan());
+        // d/da (a*x)^b at x = 0 with b > 1: b·0^(b-1)·x = 0, not 0·(0/0).
+        let q = parse_formula("(a*x)^b").unwrap();
+        let a = q.names.iter().position(|n| n == "a").unwrap();
+        let mut vals = vec![0.0; 3];
+        vals[a] = 1.5;
+        vals[q.names.iter().position(|n| n == "b").unwrap()] = 2.5;
+        assert_eq!(diff_param(&q.rhs, a).eval(&vals, &[]), 0.0);
+    }
+
+    /// Regression (found by fuzzing): the quotient rule over b^2 overflowed or
+    /// underflowed where a/b itself is an ordinary number.
+    #[test]
+    fn quotient_rule_does_not_square_the_denominator() {
+        // d/db a/b at a = b = 1e200 is −1e-200; b^2 = inf made it −0.
+        let p = parse_formula("a/b").unwrap();
+        assert_eq!(diff_param(&p.rhs, 1).eval(&[1e200, 1e200], &[]), -1e-200);
+        // d/db a/(1e-300 − b) at a = 1e-300, b = 0 is 1e300; (1e-300)^2 = 0 made it inf.
+        let q = parse_formula("a/(1e-300 - b)").unwrap();
+        let got = diff_param(&q.rhs, 1).eval(&[1e-300, 0.0], &[]);
+        assert!((got - 1e300).abs() <= 1e-15 * 1e300, "{got}");
     }
 
     #[test]

@@ -288,7 +288,8 @@ fn precedence(e: &Expr) -> u8 {
         Expr::Bin(BinOp::Mul | BinOp::Div, ..) => 2,
         Expr::Neg(_) => 3,
         Expr::Bin(BinOp::Pow, ..) => 4,
-        Expr::Num(v) if *v < 0.0 => 3,
+        // -0 too: `(-0)^-2` = +inf must not print as `-0^(-2)` = -(0^-2) (found by fuzzing).
+        Expr::Num(v) if v.is_sign_negative() => 3,
         _ => 5,
     }
 }
@@ -322,8 +323,12 @@ impl fmt::Display for Display<'_> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self.expr {
             Expr::Num(v) => {
+                let a = v.abs();
                 if *v == std::f64::consts::PI {
                     write!(f, "pi")
+                } else if a >= 1e16 || (a > 0.0 && a < 1e-5) {
+                    // Shortest round-trip digits with an exponent: `1e308`, not 309 digits.
+                    write!(f, "{:e}", v)
                 } else {
                     write!(f, "{}", v)
                 }
@@ -344,9 +349,13 @@ impl fmt::Display for Display<'_> {
             Expr::Bin(op, a, b) => {
                 let p = precedence(self.expr);
                 let (lp, rp) = match op {
-                    BinOp::Add => (precedence(a) < p, precedence(b) <= p && is_neg_like(b)),
-                    BinOp::Sub | BinOp::Div => (precedence(a) < p, precedence(b) <= p),
-                    BinOp::Mul => (precedence(a) < p, precedence(b) <= p),
+                    // A right operand of the same precedence keeps its parentheses,
+                    // `a + (b + c)` included: floating-point sums do not regroup
+                    // exactly, so the printed form must read back as the same tree
+                    // (found by fuzzing).
+                    BinOp::Add | BinOp::Sub | BinOp::Mul | BinOp::Div => {
+                        (precedence(a) < p, precedence(b) <= p)
+                    }
                     BinOp::Pow => (precedence(a) <= p, precedence(b) < p),
                 };
                 self.wrap(f, a, lp)?;
@@ -360,6 +369,42 @@ impl fmt::Display for Display<'_> {
     }
 }
 
-fn is_neg_like(e: &Expr) -> bool {
-    matches!(e, Expr::Neg(_)) || matches!(e, Expr::Num(v) if *v < 0.0)
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::symbolic::parse::parse_formula;
+
+    /// Parses, prints with the parsed names, and returns the printed text.
+    fn shown(text: &str) -> String {
+        let p = parse_formula(text).unwrap();
+        p.rhs.display(&p.names, &[]).to_string()
+    }
+
+    /// Printed forms read back as the same tree (regressions found by fuzzing).
+    #[test]
+    fn printing_reads_back_as_the_same_tree() {
+        // Right-nested sums keep their grouping: (a+b)+c and a+(b+c) round differently.
+        assert_eq!(shown("a+(b+c)"), "a + (b + c)");
+        assert_eq!(shown("a+(b-c)"), "a + (b - c)");
+        assert_eq!(shown("a+b+c"), "a + b + c");
+        assert_eq!(shown("a + -b"), "a + -b");
+        // Negative zero as a base: (-0)^-2 = +inf, -(0^-2) = -inf.
+        assert_eq!(shown("(-0)^-2"), "(-0)^(-2)");
+        let p = parse_formula(&shown("(-0)^-2")).unwrap();
+        assert_eq!(p.rhs.eval(&[], &[]), f64::INFINITY);
+        // Extreme magnitudes print with an exponent and read back exactly.
+        assert_eq!(shown("1e308*a"), "1e308*a");
+        assert_eq!(shown("2.5e-300*a"), "2.5e-300*a");
+        assert_eq!(shown("0.001*a + 123456"), "0.001*a + 123456");
+        for t in [
+            "a+(b+c)",
+            "(-0)^-2*a",
+            "1.7976931348623157e308*a",
+            "5e-324*a",
+        ] {
+            let p = parse_formula(t).unwrap();
+            let q = parse_formula(&p.rhs.display(&p.names, &[]).to_string()).unwrap();
+            assert_eq!(p.rhs, q.rhs, "{t}");
+        }
+    }
 }

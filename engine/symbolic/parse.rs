@@ -168,6 +168,13 @@ fn tokenize(chars: &[char], text: &str) -> Result<Vec<(Tok, usize)>, ParseError>
             let v: f64 = s
                 .parse()
                 .map_err(|_| err(start, format!("'{}' is not a number", s)))?;
+            if !v.is_finite() {
+                // Would print as `inf` and read back as a name (found by fuzzing).
+                return Err(err(
+                    start,
+                    format!("number '{}' is too large: the limit is about 1.8e308", s),
+                ));
+            }
             out.push((Tok::Num(v), start));
             continue;
         }
@@ -450,6 +457,11 @@ mod tests {
         assert!(parse_formula(&deep).unwrap_err().message.contains("nested"));
         let long = "x+".repeat(6000) + "x";
         assert!(parse_formula(&long).is_err());
+        let e = parse_formula("1e999*a*x").unwrap_err();
+        assert!(e.message.contains("too large"), "{}", e);
+        assert_eq!(e.position, 0);
+        assert_eq!(p("1e308*a").rhs.eval(&[1.0], &[]), 1e308);
+        assert_eq!(p("1e-400*a").rhs.eval(&[1.0], &[]), 0.0);
         let huge = "x".repeat(MAX_FORMULA_CHARS + 1);
         assert!(parse_formula(&huge).unwrap_err().message.contains("limit"));
     }

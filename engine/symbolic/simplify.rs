@@ -163,8 +163,10 @@ fn mul(a: Expr, b: Expr) -> Expr {
     if is(&b, -1.0) {
         return neg(a);
     }
-    if num(&b).is_some() {
-        // Numbers go in front: x*c = c*x exactly.
+    if num(&b).is_some() && num(&a).is_none() {
+        // Numbers go in front: x*c = c*x exactly. (Two numbers reach here only
+        // when their product overflows; swapping them would recurse forever —
+        // found by fuzzing.)
         return mul(b, a);
     }
     if let Expr::Neg(x) = a {
@@ -325,6 +327,16 @@ mod tests {
         assert_eq!(s("(-x)^3"), "(-x)^3");
         // Not finite: left alone rather than folded to inf/NaN.
         assert_eq!(s("log(0)"), "log(0)");
+    }
+
+    /// Regression (found by fuzzing): a product of two numbers that overflows
+    /// is left unfolded; it used to swap its operands forever (stack overflow).
+    #[test]
+    fn overflowing_constant_product_terminates() {
+        assert_eq!(s("1e308*10"), "1e308*10");
+        assert_eq!(s("1e308*10*a*x"), "1e308*(10*(a*x))");
+        let e = Expr::mul(Expr::Num(-1e300), Expr::Num(1e300));
+        assert_eq!(simplify(&e), e);
     }
 
     #[test]
