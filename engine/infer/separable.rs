@@ -13,7 +13,9 @@ use super::projection::Projector;
 use super::scales::{global_grid, local_grid, period_points, role_words, ParamScale};
 use super::scan::{grid_scan, line_scan, points_per_dim, Dim};
 use crate::features::DataFeatures;
+use crate::fit::Residuals;
 use crate::symbolic::roles::RoleKind;
+use nalgebra::DMatrix;
 
 /// Most grid minima carried into the clean-up.
 const KEEP: usize = 4;
@@ -59,7 +61,11 @@ pub fn separable_starts(
         .filter(|&q| scales[q].neutral.is_some())
         .collect();
     let held_neutral: Vec<usize> = if neutral.len() < nl.len() {
-        neutral.clone()
+        neutral
+            .iter()
+            .copied()
+            .filter(|&q| neutral_keeps_others_alive(proj, &typical, q, &nl))
+            .collect()
     } else {
         Vec::new()
     };
@@ -203,6 +209,29 @@ pub fn separable_starts(
         }
     }
     drafts
+}
+
+/// A neutral value is usable only when the model still depends on every other
+/// nonlinear parameter there (an exponent 1 − 1/v at v = 1 would flatten a term).
+fn neutral_keeps_others_alive(proj: &Projector, typical: &[f64], q: usize, nl: &[usize]) -> bool {
+    let mut p = typical.to_vec();
+    if !proj.project(&mut p).is_finite() {
+        return true;
+    }
+    let pr = proj.problem;
+    let mut j = DMatrix::zeros(pr.n_obs(), pr.n_params());
+    pr.jacobian(&p, &mut j);
+    let norms: Vec<f64> = (0..pr.n_params())
+        .map(|c| j.column(c).norm() * p[c].abs().max(1e-300))
+        .collect();
+    let top = norms
+        .iter()
+        .copied()
+        .filter(|v| v.is_finite())
+        .fold(0.0, f64::max);
+    nl.iter()
+        .filter(|&&o| o != q)
+        .all(|&o| !(norms[o] <= 1e-9 * top))
 }
 
 fn same(a: f64, b: f64) -> bool {
