@@ -38,7 +38,11 @@ pub fn rank(mut drafts: Vec<Draft>, max: usize) -> Vec<Draft> {
         if out.len() >= max {
             break;
         }
-        if !out.iter().any(|o| same_point(&o.p, &d.p, 1e-3)) {
+        // the same point, or the same fit from a degenerate point, counts once
+        if !out
+            .iter()
+            .any(|o| same_point(&o.p, &d.p, 1e-3) || (o.ssr - d.ssr).abs() <= 1e-10 * o.ssr.abs())
+        {
             out.push(d);
         }
     }
