@@ -30,7 +30,7 @@ struct BumpFeature {
 }
 
 /// Most seeds returned.
-const MAX_SEEDS: usize = 8;
+const MAX_SEEDS: usize = 24;
 
 /// Seeds for the model's bump and oscillation terms from the features of the
 /// first predictor. `typical` holds every parameter's typical value.
@@ -139,12 +139,55 @@ pub fn feature_seeds(
         let host_hwhm = feats.iter().find_map(|b| b.hwhm);
         // assignments of features to bump terms (ordered, distinct), first ones first
         let k = bumps.len().min(feats.len());
-        let mut assignments: Vec<Vec<usize>> = Vec::new();
-        permutations(feats.len(), k, &mut Vec::new(), &mut assignments, 24);
+        let mut assignments: Vec<Vec<BumpFeature>> = Vec::new();
+        let mut perms = Vec::new();
+        permutations(feats.len(), k, &mut Vec::new(), &mut perms, 12);
+        for a in perms {
+            assignments.push(a.iter().map(|&i| feats[i].clone()).collect());
+        }
+        // an asymmetric peak hides a second component on its wider side (peak
+        // resolution by the practitioner's eye): split it in two
+        if bumps.len() >= 2 {
+            let all: Vec<&crate::features::Peak> =
+                f.peaks.peaks.iter().chain(&f.peaks.troughs).collect();
+            for pk in all {
+                let (Some(l), Some(r)) = (pk.hwhm_left, pk.hwhm_right) else {
+                    continue;
+                };
+                let (narrow, wide) = (l.min(r), l.max(r));
+                if !(wide > 1.5 * narrow && narrow > 0.0) {
+                    continue;
+                }
+                let dir = if r > l { 1.0 } else { -1.0 };
+                let delta = wide - narrow;
+                for (c1, c2) in [
+                    (pk.centre, pk.centre + dir * delta),
+                    (pk.centre - 0.5 * dir * delta, pk.centre + 0.5 * dir * delta),
+                ] {
+                    let mk = |c: f64, part: &str| {
+                        BumpFeature {
+                        centre: c,
+                        hwhm: Some(narrow),
+                        prominence: pk.prominence.abs(),
+                        text: format!(
+                            "{part} component of the asymmetric peak at x ≈ {} (half widths {} and {}) placed at x ≈ {}",
+                            num(pk.centre),
+                            num(l),
+                            num(r),
+                            num(c)
+                        ),
+                    }
+                    };
+                    let (a, b) = (mk(c1, "main"), mk(c2, "second"));
+                    assignments.push(vec![a.clone(), b.clone()]);
+                    assignments.push(vec![b, a]);
+                }
+            }
+        }
         for a in assignments {
             let mut s = Seed::default();
-            for (bi, &fi) in a.iter().enumerate() {
-                let (b, ft) = (&bumps[bi], &feats[fi]);
+            for (bi, ft) in a.iter().enumerate() {
+                let Some(b) = bumps.get(bi) else { break };
                 if let Some(cp) = b.cp {
                     if let Some(v) = solve_for(&b.centre, cp, ft.centre, typical, &scales[cp]) {
                         s.values.push((cp, v));
@@ -185,9 +228,6 @@ pub fn feature_seeds(
             if !s.values.is_empty() {
                 seeds.push(s);
             }
-            if seeds.len() >= MAX_SEEDS {
-                break;
-            }
         }
     }
     // ---- oscillations: dominant periods
@@ -226,7 +266,7 @@ pub fn feature_seeds(
         }
         seeds = out;
     }
-    seeds.truncate(3 * MAX_SEEDS);
+    seeds.truncate(MAX_SEEDS);
     seeds
 }
 
