@@ -73,6 +73,12 @@ fn synthetic_suite_from_inferred_starts() {
                 Ok(inf) => {
                     let fit = levenberg_marquardt(&pr, &inf.start, &opts);
                     let good = fit.ssr <= from_truth.ssr * (1.0 + 1e-6) + 1e-14 * y2;
+                    if !good && std::env::var("FOOTHOLD_DEBUG").is_ok() {
+                        for c in &inf.candidates {
+                            println!("  cand {:.6e} {} {:?}", c.ssr, c.strategy, c.params);
+                        }
+                        println!("  x {:?}", pr.x[0]);
+                    }
                     if !good {
                         failures.push(format!(
                             "{} #{i}: ssr {:.6e} vs truth {:.6e}; start {:?} ({}); truth {:?}",

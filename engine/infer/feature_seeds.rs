@@ -18,6 +18,8 @@ pub struct Seed {
     pub values: Vec<(usize, f64)>,
     /// (parameter, derivation sentence).
     pub why: Vec<(usize, String)>,
+    /// Where the values came from ("features", "limits").
+    pub source: &'static str,
 }
 
 /// A feature that can place a bump: centre, half width at half maximum (if measured), prominence.
@@ -185,7 +187,10 @@ pub fn feature_seeds(
             }
         }
         for a in assignments {
-            let mut s = Seed::default();
+            let mut s = Seed {
+                source: "features",
+                ..Seed::default()
+            };
             for (bi, ft) in a.iter().enumerate() {
                 let Some(b) = bumps.get(bi) else { break };
                 if let Some(cp) = b.cp {
@@ -237,7 +242,10 @@ pub fn feature_seeds(
         let mut assignments = Vec::new();
         permutations(periods.len(), k, &mut Vec::new(), &mut assignments, 24);
         let base_seeds = if seeds.is_empty() {
-            vec![Seed::default()]
+            vec![Seed {
+                source: "features",
+                ..Seed::default()
+            }]
         } else {
             seeds.clone()
         };

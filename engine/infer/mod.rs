@@ -17,6 +17,7 @@
 
 pub mod draft;
 pub mod feature_seeds;
+pub mod limit_seeds;
 pub mod linearised;
 pub mod lsq;
 pub mod projection;

@@ -4,7 +4,7 @@
 //! squares becomes a function of θ alone. The offset and basis columns are
 //! compiled once per model into one tape and evaluated column-wise.
 
-use super::lsq::lstsq;
+use super::lsq::{lstsq, lstsq_ssr};
 use crate::fit::lm::{levenberg_marquardt, LmOptions};
 use crate::fit::problem::Problem;
 use crate::fit::Residuals;
@@ -61,6 +61,37 @@ impl<'a> Projector<'a> {
         }
     }
 
+    /// The projected residuals y − offset − G·c at the nonlinear values in `p`
+    /// (false when the model is not finite there).
+    pub fn residuals_into(&self, p: &[f64], r: &mut [f64]) -> bool {
+        let n = self.n;
+        let m = self.sep.linear.len();
+        let mut buf = vec![0.0; n * (m + 1)];
+        {
+            let cols = self.problem.columns();
+            let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
+            self.tape.eval(p, &cols, &mut outs);
+        }
+        let (off, g) = buf.split_at(n);
+        let b: Vec<f64> = self.problem.y.iter().zip(off).map(|(y, o)| y - o).collect();
+        let coef = if m == 0 {
+            Vec::new()
+        } else {
+            match lstsq(g, n, m, &b) {
+                Some(s) => s.coef,
+                None => return false,
+            }
+        };
+        for (i, ri) in r.iter_mut().enumerate().take(n) {
+            let mut v = b[i];
+            for (j, c) in coef.iter().enumerate() {
+                v -= c * g[j * n + i];
+            }
+            *ri = v;
+        }
+        r.iter().all(|v| v.is_finite())
+    }
+
     /// The linear coefficients and the residual sum of squares, without writing.
     pub fn solve(&self, p: &[f64]) -> Option<(Vec<f64>, f64)> {
         let n = self.n;
@@ -79,6 +110,30 @@ impl<'a> Projector<'a> {
         }
         let s = lstsq(g, n, m, &b)?;
         s.ssr.is_finite().then_some((s.coef, s.ssr))
+    }
+
+    /// The projected residual sum of squares only (cheap path for ranking grid
+    /// points; ∞ when the model is not finite there).
+    pub fn scan_ssr(&self, p: &[f64]) -> f64 {
+        let n = self.n;
+        let m = self.sep.linear.len();
+        let mut buf = vec![0.0; n * (m + 1)];
+        {
+            let cols = self.problem.columns();
+            let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
+            self.tape.eval(p, &cols, &mut outs);
+        }
+        let (off, g) = buf.split_at(n);
+        let b: Vec<f64> = self.problem.y.iter().zip(off).map(|(y, o)| y - o).collect();
+        let s = if m == 0 {
+            Some(b.iter().map(|v| v * v).sum::<f64>())
+        } else {
+            lstsq_ssr(g, n, m, &b)
+        };
+        match s {
+            Some(v) if v.is_finite() => v,
+            _ => f64::INFINITY,
+        }
     }
 
     /// Residual sum of squares of the original problem at `p` as given.
@@ -161,10 +216,8 @@ impl Residuals for Reduced<'_, '_> {
         self.free.len()
     }
     fn residuals(&self, theta: &[f64], r: &mut [f64]) {
-        let mut p = self.full(theta);
-        if self.proj.project(&mut p).is_finite() {
-            self.proj.problem.residuals(&p, r);
-        } else {
+        let p = self.full(theta);
+        if !self.proj.residuals_into(&p, r) {
             r.fill(f64::NAN);
         }
     }

@@ -43,8 +43,7 @@ pub fn grid_scan(proj: &Projector, base: &[f64], dims: &[Dim], keep: usize) -> V
             r /= sizes[k];
             p[d.param] = d.values[idx[k]];
         }
-        let v = proj.project(&mut p);
-        *s = if v.is_finite() { v } else { f64::INFINITY };
+        *s = proj.scan_ssr(&p);
     }
     // strides for neighbour lookup
     let mut stride = vec![1usize; dims.len()];
@@ -73,6 +72,8 @@ pub fn grid_scan(proj: &Projector, base: &[f64], dims: &[Dim], keep: usize) -> V
         }
     }
     minima.sort_by(|a, b| a.1.total_cmp(&b.1).then(a.0.cmp(&b.0)));
+    // a flat stretch (a term pushed out of the data) gives many equal "minima": keep one
+    minima.dedup_by(|b, a| (a.1 - b.1).abs() <= 1e-9 * a.1.abs());
     minima
         .into_iter()
         .take(keep)
@@ -91,20 +92,20 @@ pub fn grid_scan(proj: &Projector, base: &[f64], dims: &[Dim], keep: usize) -> V
 
 /// Scans one parameter over `values` with everything else held; moves `p`
 /// to the best value when it lowers the ssr. Returns the ssr at `p`.
-pub fn line_scan(proj: &Projector, p: &mut Vec<f64>, param: usize, values: &[f64]) -> f64 {
-    let mut best = p.clone();
-    let mut best_ssr = proj.project(&mut best);
-    let mut q = p.clone();
+pub fn line_scan(proj: &Projector, p: &mut [f64], param: usize, values: &[f64]) -> f64 {
+    let mut best = p[param];
+    let mut best_ssr = proj.scan_ssr(p);
+    let mut q = p.to_vec();
     for &v in values {
         q[param] = v;
-        let s = proj.project(&mut q);
+        let s = proj.scan_ssr(&q);
         if s < best_ssr {
             best_ssr = s;
-            best.clone_from(&q);
+            best = v;
         }
     }
-    *p = best;
-    best_ssr
+    p[param] = best;
+    proj.project(p)
 }
 
 /// Products of `sizes` up to `budget` grid points: the number of values per

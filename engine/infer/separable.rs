@@ -9,6 +9,7 @@
 
 use super::draft::{num, rank, Draft};
 use super::feature_seeds::{feature_seeds, Seed};
+use super::limit_seeds::limit_seeds;
 use super::projection::Projector;
 use super::scales::{global_grid, local_grid, period_points, role_words, ParamScale};
 use super::scan::{grid_scan, line_scan, points_per_dim, Dim};
@@ -69,10 +70,16 @@ pub fn separable_starts(
     } else {
         Vec::new()
     };
-    let mut seeds = feature_seeds(model, features, scales, &typical, &nl);
+    // limits first, then the plain scan, then the features' assignments
+    let mut seeds = limit_seeds(model, features, scales, &typical, &nl);
     seeds.push(Seed::default());
+    seeds.extend(feature_seeds(model, features, scales, &typical, &nl));
     let budget = (400_000 / n).clamp(600, 8000);
     let mut drafts: Vec<Draft> = Vec::new();
+    let n_seeded = seeds
+        .iter()
+        .filter(|s| !s.values.is_empty() && s.source == "features")
+        .count();
     let seed_cap = if nl.len() - held_neutral.len() >= 2 {
         12
     } else {
@@ -92,14 +99,12 @@ pub fn separable_starts(
         free.sort_by_key(|&q| order_key(scales[q].kind));
         free.truncate(3);
         let k = free.len();
-        let per = points_per_dim(
-            k,
-            if seed.values.is_empty() {
-                budget
-            } else {
-                budget / 3
-            },
-        );
+        let per = if seed.values.is_empty() {
+            // features already place some candidates: the plain scan can be coarser
+            points_per_dim(k, if n_seeded > 0 { budget / 2 } else { budget })
+        } else {
+            points_per_dim(k, budget / 6).min(50)
+        };
         let dims: Vec<Dim> = free
             .iter()
             .map(|&q| {
@@ -144,7 +149,7 @@ pub fn separable_starts(
                 strategy: if seed.values.is_empty() {
                     "separable least squares".into()
                 } else {
-                    "features + separable least squares".into()
+                    format!("{} + separable least squares", seed.source)
                 },
                 why,
             });
@@ -163,8 +168,14 @@ pub fn separable_starts(
             let before = p.clone();
             for round in 0..2 {
                 for &q in &movable {
-                    let values = if scales[q].kind == RoleKind::Period && round == 0 && rank_i < 2 {
+                    let values = if scales[q].kind == RoleKind::Period && round == 0 && rank_i == 0
+                    {
                         global_grid(&scales[q], period_points(&scales[q], n, 400))
+                    } else if round == 0 && rank_i == 0 {
+                        // the best candidate looks over each parameter's whole range once
+                        let mut v = global_grid(&scales[q], 60);
+                        v.extend(local_grid(&scales[q], p[q], 25, 4.0));
+                        v
                     } else {
                         let ratio = if round == 0 { 4.0 } else { 1.5 };
                         local_grid(&scales[q], p[q], 25, ratio)
