@@ -160,7 +160,7 @@ pub fn lstsq_ssr(a: &[f64], n: usize, m: usize, b: &[f64]) -> Option<f64> {
         }
         scale[j] = s;
     }
-    if scale.iter().any(|s| *s == 0.0) || !b[..n].iter().all(|v| v.is_finite()) {
+    if scale.contains(&0.0) || !b[..n].iter().all(|v| v.is_finite()) {
         return lstsq(a, n, m, b).map(|s| s.ssr);
     }
     // Gram matrix and right side of the scaled problem
@@ -179,7 +179,7 @@ pub fn lstsq_ssr(a: &[f64], n: usize, m: usize, b: &[f64]) -> Option<f64> {
         for k in 0..j {
             d -= g[j * m + k] * g[j * m + k];
         }
-        if !(d > 1e-10) {
+        if d.is_nan() || d <= 1e-10 {
             return lstsq(a, n, m, b).map(|s| s.ssr);
         }
         let l = d.sqrt();

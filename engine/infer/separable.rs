@@ -242,7 +242,7 @@ fn neutral_keeps_others_alive(proj: &Projector, typical: &[f64], q: usize, nl: &
         .fold(0.0, f64::max);
     nl.iter()
         .filter(|&&o| o != q)
-        .all(|&o| !(norms[o] <= 1e-9 * top))
+        .all(|&o| norms[o].is_nan() || norms[o] > 1e-9 * top)
 }
 
 fn same(a: f64, b: f64) -> bool {
