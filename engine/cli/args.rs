@@ -18,7 +18,7 @@ pub struct Cli {
 pub enum Command {
     /// Fit a model to data from given starting values (--start).
     Fit(FitArgs),
-    /// Work out starting values from the model and the data (not available yet).
+    /// Work out starting values from the model and the data, with how each was obtained.
     Infer(InferArgs),
     /// Rank candidate starts by a multistart search (not available yet).
     Rank(RankArgs),

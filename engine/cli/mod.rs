@@ -5,6 +5,8 @@
 
 pub mod args;
 pub mod fit_cmd;
+pub mod infer_cmd;
+pub mod input;
 pub mod starts;
 
 use args::{Cli, Command};
@@ -49,7 +51,7 @@ where
     };
     let result = match &cli.command {
         Command::Fit(a) => fit_cmd::run_fit(a, out, err),
-        Command::Infer(_) => not_yet("infer"),
+        Command::Infer(a) => infer_cmd::run_infer(a, out, err),
         Command::Rank(_) => not_yet("rank"),
         Command::Report(_) => not_yet("report"),
         Command::Models(_) => not_yet("models"),
@@ -148,7 +150,6 @@ mod tests {
     #[test]
     fn later_commands_are_not_available_yet() {
         for args in [
-            vec!["infer", "d.csv", "--model", "a*x"],
             vec![
                 "rank", "d.csv", "--model", "a*x", "--starts", "50", "--seed", "7", "--top", "3",
             ],
