@@ -36,15 +36,23 @@ pub fn resolve_model(model: &str, x: Option<&str>) -> Result<ModelSpec, Error> {
     let name = model.trim();
     let lib = library::find(name);
     let source = lib.map(|m| m.formula.as_str()).unwrap_or(model);
-    let mut parsed = match parse_formula(source) {
-        Ok(p) => p,
-        Err(e) if lib.is_none() && library::is_kebab_case(name) && name.contains('-') => {
-            return Err(Error::Usage(format!(
-                "'{name}' is neither a model in the library nor a formula ({e}); `foothold models` lists the library"
-            )))
-        }
-        Err(e) => return Err(ModelError::from(e).into()),
-    };
+    if lib.is_none() && library::is_kebab_case(name) && name.contains('-') {
+        let near: Vec<&str> = library::library()
+            .iter()
+            .map(|m| m.name.as_str())
+            .filter(|n| n.get(..3).is_some() && name.starts_with(&n[..3]))
+            .collect();
+        let hint = if near.is_empty() {
+            String::new()
+        } else {
+            format!(" (did you mean {}?)", near.join(", "))
+        };
+        return Err(Error::Usage(format!(
+            "'{name}' is not a model in the library{hint}; `foothold models` lists them. \
+             To subtract names in a formula, put spaces around '-', e.g. 'a - b'"
+        )));
+    }
+    let mut parsed = parse_formula(source).map_err(ModelError::from)?;
     let mut rebuilt = lib.is_some();
     if let Some(col) = x {
         let Some(k) = parsed.names.iter().position(|n| n == LIBRARY_X) else {
