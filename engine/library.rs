@@ -220,7 +220,7 @@ mod tests {
                 entry("missing", "a*x + b", ok),
                 "are not those of the formula",
             ),
-            (entry("unparsable", "a*(x", ok), "expected"),
+            (entry("unparsable", "a*(x", ok), "unbalanced"),
             (
                 entry("no-meaning", "a*x", "[{name: a, meaning: '', units: u}]"),
                 "needs a meaning",

@@ -131,17 +131,23 @@ fn report_without_starts_or_with_a_bad_model_exits_two() {
     assert_eq!(code, 2, "{err}");
 }
 
-/// Runs a command with a deadline; `None` when it did not finish in time.
-fn run_with_deadline(cmd: &mut Command, limit: Duration) -> Option<std::process::Output> {
+/// Runs a command with a deadline, its output going to files in `dir` (a
+/// pipe would fill up and stall a large DOM dump); returns stdout, or `None`
+/// when it did not finish in time.
+fn run_with_deadline(cmd: &mut Command, dir: &Path, limit: Duration) -> Option<String> {
+    let out_path = dir.join("chromium.out");
+    let out = std::fs::File::create(&out_path).ok()?;
+    let err = std::fs::File::create(dir.join("chromium.err")).ok()?;
     let mut child = cmd
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
+        .stdout(out)
+        .stderr(err)
+        .stdin(Stdio::null())
         .spawn()
         .ok()?;
     let start = Instant::now();
     loop {
         if let Ok(Some(_)) = child.try_wait() {
-            return child.wait_with_output().ok();
+            return std::fs::read_to_string(&out_path).ok();
         }
         if start.elapsed() > limit {
             let _ = child.kill();
@@ -189,12 +195,12 @@ fn report_renders_in_headless_chromium() {
     let url = format!("file://{}", html.display());
     let limit = Duration::from_secs(120);
 
-    let out = run_with_deadline(
+    let dom = run_with_deadline(
         chromium(&d.join("profile-dom")).arg("--dump-dom").arg(&url),
+        &d,
         limit,
     )
     .expect("chromium --dump-dom finished in time");
-    let dom = String::from_utf8_lossy(&out.stdout);
     assert!(dom.matches("<svg").count() >= 2, "inline plots in the DOM");
     assert!(
         dom.contains("<h2>Estimates</h2>") && dom.contains("Standard error"),
@@ -208,6 +214,7 @@ fn report_renders_in_headless_chromium() {
             .arg(format!("--screenshot={}", shot.display()))
             .arg("--window-size=1280,3600")
             .arg(&url),
+        &d,
         limit,
     )
     .expect("chromium --screenshot finished in time");
