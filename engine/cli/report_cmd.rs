@@ -79,9 +79,13 @@ pub fn run_report(
         .collect();
     let x = problem.x.first().map(Vec::as_slice).unwrap_or(&[]);
     let features = detect(x, &problem.y);
+    let file = std::path::Path::new(&data.source)
+        .file_name()
+        .map(|f| f.to_string_lossy().into_owned())
+        .unwrap_or_else(|| data.source.clone());
     let title = match spec.library {
-        Some(m) => format!("Fit of the {} model to {}", m.name, data.source),
-        None => format!("Fit to {}", data.source),
+        Some(m) => format!("Fit of the {} model to {file}", m.name),
+        None => format!("Fit to {file}"),
     };
     let mut warnings = Vec::new();
     if !summary.converged {
