@@ -242,7 +242,7 @@ pub fn features_table(features: &DataFeatures, x: &str, y: &str) -> Table {
 
 /// `n` evenly spaced values from `lo` to `hi` (both included).
 fn grid(lo: f64, hi: f64, n: usize) -> Vec<f64> {
-    if n < 2 || !(hi > lo) {
+    if n < 2 || hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
         return vec![lo];
     }
     (0..n)
