@@ -9,6 +9,7 @@
 //! - [`fit`]: the Levenberg–Marquardt fitter and the statistics of a fit.
 //! - [`search`]: multistart global search, clustering and ranking of minima.
 //! - [`report`]: tables, JSON, plots and the HTML report.
+//! - [`library`]: the named models of the trade (`rules/models.yaml`).
 //! - [`api`]: the small library surface (`fit`, `infer`, `rank` on in-memory columns).
 
 pub mod api;
@@ -18,6 +19,7 @@ pub mod error;
 pub mod features;
 pub mod fit;
 pub mod infer;
+pub mod library;
 pub mod report;
 pub mod rules;
 pub mod search;

@@ -282,13 +282,8 @@ fn usage_errors_and_commands_not_available_yet() {
     assert_eq!(code, 2);
     assert!(err.starts_with("foothold: error: "), "{err}");
     assert!(!err.contains("panicked"));
-    for cmd in ["rank", "report"] {
-        fails_with(
-            &[cmd, "d.csv", "--model", "a*x"],
-            &[cmd, "not available yet"],
-        );
-    }
-    // infer is available: a missing data file is a usage error like fit's
-    fails_with(&["infer", "d.csv", "--model", "a*x"], &["d.csv"]);
-    fails_with(&["models"], &["not available yet"]);
+    fails_with(
+        &["rank", "d.csv", "--model", "a*x"],
+        &["rank", "not available yet"],
+    );
 }

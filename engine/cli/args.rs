@@ -16,15 +16,15 @@ pub struct Cli {
 /// The subcommands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Fit a model to data from given starting values (--start).
+    /// Fit a model to data from given starting values (--start), one curve or one per group (--by).
     Fit(FitArgs),
     /// Work out starting values from the model and the data, with how each was obtained.
     Infer(InferArgs),
     /// Rank candidate starts by a multistart search (not available yet).
     Rank(RankArgs),
-    /// Write a full report of a fit (not available yet).
+    /// Write a full HTML report of a fit: data, features, starts, estimates, plots.
     Report(ReportArgs),
-    /// List the models foothold knows by structure (not available yet).
+    /// List the model library: names usable with --model.
     Models(ModelsArgs),
 }
 
@@ -35,10 +35,14 @@ pub struct InputArgs {
     /// (.xlsx, .xlsm, .xlsb, .xls, .ods); or - for standard input (text).
     #[arg(value_name = "DATA")]
     pub data: String,
-    /// Model formula, e.g. "y = a*exp(-k*x)"; names that are columns are
-    /// variables, all other names are parameters.
-    #[arg(long, short = 'm', value_name = "FORMULA")]
+    /// Model formula, e.g. "y = a*exp(-k*x)" (names that are columns are
+    /// variables, all other names are parameters), or the name of a library
+    /// model, e.g. michaelis-menten (see `foothold models`).
+    #[arg(long, short = 'm', value_name = "FORMULA|NAME")]
     pub model: String,
+    /// Data column for the model's variable `x` (library models are written in x).
+    #[arg(long = "x", value_name = "COLUMN")]
+    pub x: Option<String>,
     /// Response column when the formula has no left-hand side [default: y].
     #[arg(long = "y", value_name = "COLUMN")]
     pub y: Option<String>,
@@ -68,6 +72,10 @@ pub enum Format {
     Table,
     /// JSON document.
     Json,
+    /// YAML document (same fields as JSON).
+    Yaml,
+    /// Comma-separated values with a header line.
+    Csv,
 }
 
 /// Options of the multistart search, shared by `rank` and `report`.
@@ -95,6 +103,16 @@ pub struct FitArgs {
     /// Starting values, NAME=VALUE, comma-separated or repeated; every parameter needs one.
     #[arg(long, value_name = "NAME=VALUE,...", value_delimiter = ',')]
     pub start: Vec<String>,
+    /// Fit each group of rows sharing a value of this (numeric) column separately;
+    /// one summary row per group.
+    #[arg(long, value_name = "COLUMN")]
+    pub by: Option<String>,
+    /// Write the result to this file instead of standard output.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Also write the survey and fit plots (survey.svg/png, fit.svg/png) into this directory.
+    #[arg(long, value_name = "DIR")]
+    pub plots: Option<PathBuf>,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -129,9 +147,15 @@ pub struct ReportArgs {
     pub input: InputArgs,
     #[command(flatten)]
     pub search: SearchArgs,
-    /// File to write.
+    /// Starting values, NAME=VALUE, comma-separated or repeated; every parameter needs one.
+    #[arg(long, value_name = "NAME=VALUE,...", value_delimiter = ',')]
+    pub start: Vec<String>,
+    /// HTML file to write [default: standard output].
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
+    /// Also write the survey and fit plots (survey.svg/png, fit.svg/png) into this directory.
+    #[arg(long, value_name = "DIR")]
+    pub plots: Option<PathBuf>,
     /// Print no warnings.
     #[arg(long, short = 'q')]
     pub quiet: bool,

@@ -1,35 +1,50 @@
-//! `foothold fit`: read the data, bind the model, take the given starting
-//! values, run Levenberg–Marquardt, and print the fit.
+//! `foothold fit`: read the data, bind the model, take the starting values
+//! (given, or from the automatic hook), run Levenberg–Marquardt, and print
+//! the fit as a table, JSON, YAML or CSV; `--by` hands over to the batch.
 
 use super::args::{FitArgs, Format};
-use super::input::{bind_model, build_problem, read_data};
-use super::starts::parse_starts;
+use super::batch::run_batch;
+use super::output::{emit, write_plots};
+use super::prepare::{bind_rows, model_for, read_input, run_fit as lm_fit, starting_values};
 use super::Outcome;
 use crate::error::Error;
-use crate::fit::lm::{levenberg_marquardt, LmOptions};
-use crate::fit::stats::summarize;
+use crate::features::detect;
+use crate::report::assemble::{fit_sheet, survey_panels};
 use crate::report::fit_json::fit_json;
-use crate::report::fit_table::{fit_table, FitContext};
+use crate::report::fit_table::fit_table;
+use crate::report::formats::{fit_csv, fit_yaml};
 use std::io::Write;
 use std::time::Instant;
 
-/// Runs `fit`; the result goes to `out`, warnings and details to `err`.
+/// Runs `fit`; the result goes to `out` (or `--out`), warnings and details to `err`.
 pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Result<Outcome, Error> {
     let input = &args.input;
     let verbose = args.output.verbose;
     let clock = Instant::now();
-    let data = read_data(input, verbose, err)?;
-    let model = bind_model(input, &data)?;
-    let start =
-        parse_starts(&args.start, &model.params).map_err(|e| Error::Usage(e.to_string()))?;
-    let ctx_model = model.text.clone();
-    let ctx_response = model.response.clone();
-    let bound = build_problem(model, &data, verbose, err)?;
-    let problem = bound.problem;
-    let data_warnings = bound.warnings;
+    let data = read_input(input, verbose, err)?;
+    if args.by.is_some() {
+        if args.plots.is_some() {
+            return Err(Error::Usage(
+                "--plots draws one curve; it cannot be combined with --by".into(),
+            ));
+        }
+        return run_batch(args, &data, out, err);
+    }
+    let (_, model) = model_for(input, &data)?;
+    if verbose {
+        let _ = writeln!(
+            err,
+            "foothold: model parameters: {}; predictors: {}; response: {}",
+            model.params.join(", "),
+            model.vars.join(", "),
+            model.response
+        );
+    }
+    let bound = bind_rows(model, &data)?;
+    let problem = &bound.problem;
+    let start = starting_values(&args.start, problem)?;
     let fit_clock = Instant::now();
-    let result = levenberg_marquardt(&problem, &start, &LmOptions::default());
-    let summary = summarize(&problem.model.params, &result);
+    let (result, summary) = lm_fit(problem, &start);
     if verbose {
         let _ = writeln!(
             err,
@@ -37,29 +52,39 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
             result.stop,
             result.iterations,
             result.evaluations,
-            ms(fit_clock),
-            ms(clock)
+            fit_clock.elapsed().as_secs_f64() * 1e3,
+            clock.elapsed().as_secs_f64() * 1e3
         );
     }
-    let ctx = FitContext {
-        model: ctx_model,
-        data: data.source.clone(),
-        response: ctx_response,
-        skipped_rows: bound.skipped_rows,
-        warnings: data_warnings,
-    };
+    let ctx = &bound.context;
     if !args.output.quiet {
         for w in ctx.warnings.iter().chain(&summary.warnings) {
             let _ = writeln!(err, "foothold: warning: {w}");
         }
     }
-    let text = match args.output.format {
-        Format::Table => fit_table(&summary, &ctx),
-        Format::Json => {
-            fit_json(&summary, &ctx).map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
-        }
-    };
-    let _ = out.write_all(text.as_bytes());
+    let text =
+        match args.output.format {
+            Format::Table => fit_table(&summary, ctx),
+            Format::Json => fit_json(&summary, ctx)
+                .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?,
+            Format::Yaml => fit_yaml(&summary, ctx)
+                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?,
+            Format::Csv => fit_csv(&summary),
+        };
+    if let Some(dir) = &args.plots {
+        let x = problem.x.first().map(Vec::as_slice).unwrap_or(&[]);
+        let features = detect(x, &problem.y);
+        let x_name = problem.model.vars.first().cloned().unwrap_or_default();
+        let panels = survey_panels(&features, &x_name, &ctx.response);
+        let sheet = fit_sheet(
+            problem,
+            &start,
+            &result.params,
+            &format!("Fit of {}", ctx.model),
+        );
+        write_plots(dir, &panels, &sheet)?;
+    }
+    emit(&text, args.out.as_deref(), out)?;
     if summary.converged {
         Ok(Outcome::Success)
     } else {
@@ -68,8 +93,4 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
             summary.stop_reason, summary.iterations
         )))
     }
-}
-
-fn ms(since: Instant) -> f64 {
-    since.elapsed().as_secs_f64() * 1e3
 }

@@ -5,37 +5,37 @@ use super::fit_table::FitContext;
 use crate::fit::stats::FitSummary;
 use serde::Serialize;
 
-/// One parameter in the JSON output.
+/// One parameter in the JSON (and YAML) output; `None` is a non-finite number.
 #[derive(Debug, Serialize)]
-struct ParamJson<'a> {
-    name: &'a str,
-    estimate: Option<f64>,
-    std_error: Option<f64>,
-    t_value: Option<f64>,
-    ci_low: Option<f64>,
-    ci_high: Option<f64>,
+pub struct ParamJson<'a> {
+    pub name: &'a str,
+    pub estimate: Option<f64>,
+    pub std_error: Option<f64>,
+    pub t_value: Option<f64>,
+    pub ci_low: Option<f64>,
+    pub ci_high: Option<f64>,
 }
 
 /// The whole JSON document (struct order = output order).
 #[derive(Debug, Serialize)]
-struct FitJson<'a> {
-    model: &'a str,
-    data: &'a str,
-    response: &'a str,
-    converged: bool,
-    parameters: Vec<ParamJson<'a>>,
-    ssr: Option<f64>,
-    residual_sd: Option<f64>,
-    dof: usize,
-    n_obs: usize,
-    skipped_rows: usize,
-    iterations: usize,
-    evaluations: usize,
-    stop_reason: &'a str,
-    condition_number: Option<f64>,
+pub struct FitJson<'a> {
+    pub model: &'a str,
+    pub data: &'a str,
+    pub response: &'a str,
+    pub converged: bool,
+    pub parameters: Vec<ParamJson<'a>>,
+    pub ssr: Option<f64>,
+    pub residual_sd: Option<f64>,
+    pub dof: usize,
+    pub n_obs: usize,
+    pub skipped_rows: usize,
+    pub iterations: usize,
+    pub evaluations: usize,
+    pub stop_reason: &'a str,
+    pub condition_number: Option<f64>,
     /// Row i, column j: correlation of parameters i and j (parameter order).
-    correlation: Vec<Vec<Option<f64>>>,
-    warnings: Vec<&'a str>,
+    pub correlation: Vec<Vec<Option<f64>>>,
+    pub warnings: Vec<&'a str>,
 }
 
 fn finite(v: f64) -> Option<f64> {
@@ -44,7 +44,12 @@ fn finite(v: f64) -> Option<f64> {
 
 /// Renders the fit as pretty-printed JSON, ending with a newline.
 pub fn fit_json(summary: &FitSummary, ctx: &FitContext) -> Result<String, serde_json::Error> {
-    let doc = FitJson {
+    Ok(serde_json::to_string_pretty(&fit_document(summary, ctx))? + "\n")
+}
+
+/// The document behind the JSON output, for other serialisations (YAML).
+pub fn fit_document<'a>(summary: &'a FitSummary, ctx: &'a FitContext) -> FitJson<'a> {
+    FitJson {
         model: &ctx.model,
         data: &ctx.data,
         response: &ctx.response,
@@ -81,8 +86,7 @@ pub fn fit_json(summary: &FitSummary, ctx: &FitContext) -> Result<String, serde_
             .chain(&summary.warnings)
             .map(|s| s.as_str())
             .collect(),
-    };
-    Ok(serde_json::to_string_pretty(&doc)? + "\n")
+    }
 }
 
 #[cfg(test)]

@@ -1,5 +1,8 @@
 //! Output: tables, JSON and other formats, plots and the HTML report.
 
+pub mod assemble;
+pub mod atomic;
+pub mod formats;
 pub mod html;
 pub mod plot;
 pub mod fit_json;

@@ -1,0 +1,391 @@
+//! `foothold fit --by COLUMN`: one curve per group of rows sharing a value of
+//! a numeric column, fitted in parallel (rayon), with a progress bar on a
+//! terminal (indicatif). A failing group never stops the others; every group
+//! gets one summary row, in order of first appearance.
+
+use super::args::{FitArgs, Format};
+use super::output::emit;
+use super::prepare::{bind_rows, model_for, run_fit, starting_values};
+use super::Outcome;
+use crate::data::Dataset;
+use crate::error::Error;
+use crate::report::fit_table::{format_number, SIGNIFICANT};
+use crate::report::formats::{aligned_table, csv_line, csv_number, to_json, to_yaml, Align};
+use crate::symbolic::Model;
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use rayon::prelude::*;
+use serde::Serialize;
+use std::io::{IsTerminal, Write};
+
+/// How one group's fit ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum GroupStatus {
+    /// The fit converged.
+    Converged,
+    /// The fit ran but did not converge.
+    NotConverged,
+    /// The group could not be fitted (too few rows, bad starts, ...).
+    Failed,
+}
+
+impl GroupStatus {
+    /// The status as written in outputs.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            GroupStatus::Converged => "converged",
+            GroupStatus::NotConverged => "not_converged",
+            GroupStatus::Failed => "failed",
+        }
+    }
+}
+
+/// One parameter of one group: estimate and standard error (`None` when not finite or not fitted).
+#[derive(Debug, Clone, Serialize)]
+pub struct GroupParameter {
+    pub name: String,
+    pub estimate: Option<f64>,
+    pub std_error: Option<f64>,
+}
+
+/// The summary row of one group.
+#[derive(Debug, Clone, Serialize)]
+pub struct GroupRow {
+    /// The group's value of the `--by` column, as text.
+    pub group: String,
+    pub status: GroupStatus,
+    /// Rows used in this group's fit (0 when it failed before fitting).
+    pub n_obs: usize,
+    pub iterations: usize,
+    pub ssr: Option<f64>,
+    pub parameters: Vec<GroupParameter>,
+    /// Why the group failed or did not converge; empty otherwise.
+    pub message: String,
+}
+
+/// The whole batch result (JSON and YAML output).
+#[derive(Debug, Clone, Serialize)]
+pub struct BatchDoc {
+    pub model: String,
+    pub data: String,
+    pub response: String,
+    pub by: String,
+    pub groups: Vec<GroupRow>,
+    pub warnings: Vec<String>,
+}
+
+fn finite(v: f64) -> Option<f64> {
+    v.is_finite().then_some(v)
+}
+
+/// Group keys in order of first appearance and, for each, its row indices;
+/// rows with an empty group cell are counted apart.
+pub fn groups_of(column: &[f64]) -> (Vec<(f64, Vec<usize>)>, usize) {
+    let mut groups: Vec<(f64, Vec<usize>)> = Vec::new();
+    let mut missing = 0;
+    for (i, &v) in column.iter().enumerate() {
+        if v.is_nan() {
+            missing += 1;
+            continue;
+        }
+        match groups.iter_mut().find(|(k, _)| *k == v) {
+            Some((_, rows)) => rows.push(i),
+            None => groups.push((v, vec![i])),
+        }
+    }
+    (groups, missing)
+}
+
+/// The rows `rows` of `data`, as a dataset labelled with the group.
+fn subset(data: &Dataset, rows: &[usize], label: &str) -> Dataset {
+    Dataset {
+        columns: data.columns.clone(),
+        values: data
+            .values
+            .iter()
+            .map(|c| rows.iter().filter_map(|&i| c.get(i).copied()).collect())
+            .collect(),
+        source: label.to_string(),
+        skipped_rows: 0,
+    }
+}
+
+/// Fits one group; every error becomes a failed row.
+fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> GroupRow {
+    let names = &model.params;
+    let failed = |message: String| GroupRow {
+        group: key.clone(),
+        status: GroupStatus::Failed,
+        n_obs: 0,
+        iterations: 0,
+        ssr: None,
+        parameters: names
+            .iter()
+            .map(|n| GroupParameter {
+                name: n.clone(),
+                estimate: None,
+                std_error: None,
+            })
+            .collect(),
+        message,
+    };
+    let bound = match bind_rows(model.clone(), data) {
+        Ok(b) => b,
+        Err(e) => return failed(e.to_string()),
+    };
+    let start = match starting_values(&args.start, &bound.problem) {
+        Ok(s) => s,
+        Err(e) => return failed(e.to_string()),
+    };
+    let (_, s) = run_fit(&bound.problem, &start);
+    let status = if s.converged {
+        GroupStatus::Converged
+    } else {
+        GroupStatus::NotConverged
+    };
+    let mut notes: Vec<String> = bound.context.warnings.clone();
+    if !s.converged {
+        notes.insert(
+            0,
+            format!("did not converge (stop reason: {})", s.stop_reason),
+        );
+    }
+    notes.extend(s.warnings.iter().cloned());
+    GroupRow {
+        group: key,
+        status,
+        n_obs: s.n_obs,
+        iterations: s.iterations,
+        ssr: finite(s.ssr),
+        parameters: s
+            .parameters
+            .iter()
+            .map(|p| GroupParameter {
+                name: p.name.clone(),
+                estimate: finite(p.estimate),
+                std_error: finite(p.std_error),
+            })
+            .collect(),
+        message: notes.join("; "),
+    }
+}
+
+/// Runs the grouped fit of `fit --by`.
+pub fn run_batch(
+    args: &FitArgs,
+    data: &Dataset,
+    out: &mut dyn Write,
+    err: &mut dyn Write,
+) -> Result<Outcome, Error> {
+    let by = args.by.clone().unwrap_or_default();
+    let Some(column) = data.column(&by) else {
+        return Err(Error::Usage(format!(
+            "--by names column '{by}', which is not in {} (columns: {})",
+            data.source,
+            data.column_list()
+        )));
+    };
+    let (_, model) = model_for(&args.input, data)?;
+    if model.vars.contains(&by) || model.response == by {
+        return Err(Error::Usage(format!(
+            "--by {by}: the model uses '{by}' itself; group by another column"
+        )));
+    }
+    let (groups, missing) = groups_of(column);
+    if groups.is_empty() {
+        return Err(Error::Usage(format!("--by {by}: the column has no values")));
+    }
+    let mut warnings = Vec::new();
+    if missing > 0 {
+        warnings.push(format!(
+            "skipped {missing} row{} with an empty '{by}' cell",
+            if missing == 1 { "" } else { "s" }
+        ));
+    }
+    let show = !args.output.quiet && std::io::stderr().is_terminal();
+    let bar = if show {
+        let b =
+            ProgressBar::with_draw_target(Some(groups.len() as u64), ProgressDrawTarget::stderr());
+        if let Ok(style) =
+            ProgressStyle::with_template("fitting {bar:30} {pos}/{len} groups ({elapsed})")
+        {
+            b.set_style(style);
+        }
+        b
+    } else {
+        ProgressBar::hidden()
+    };
+    let rows: Vec<GroupRow> = groups
+        .par_iter()
+        .map(|(key, idx)| {
+            let key = format!("{key}");
+            let label = format!("{} [{by} = {key}]", data.source);
+            let row = fit_group(args, &model, &subset(data, idx, &label), key);
+            bar.inc(1);
+            row
+        })
+        .collect();
+    bar.finish_and_clear();
+    if !args.output.quiet {
+        for w in &warnings {
+            let _ = writeln!(err, "foothold: warning: {w}");
+        }
+        for r in rows.iter().filter(|r| r.status != GroupStatus::Converged) {
+            let _ = writeln!(
+                err,
+                "foothold: warning: group {by} = {}: {}: {}",
+                r.group,
+                r.status.as_str(),
+                r.message
+            );
+        }
+    }
+    let doc = BatchDoc {
+        model: model.text.clone(),
+        data: data.source.clone(),
+        response: model.response.clone(),
+        by: by.clone(),
+        groups: rows,
+        warnings,
+    };
+    let text = match args.output.format {
+        Format::Table => batch_table(&doc, &model.params),
+        Format::Csv => batch_csv(&doc, &model.params),
+        Format::Json => {
+            to_json(&doc).map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
+        }
+        Format::Yaml => {
+            to_yaml(&doc).map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
+        }
+    };
+    emit(&text, args.out.as_deref(), out)?;
+    let bad: Vec<&str> = doc
+        .groups
+        .iter()
+        .filter(|r| r.status != GroupStatus::Converged)
+        .map(|r| r.group.as_str())
+        .collect();
+    if bad.is_empty() {
+        Ok(Outcome::Success)
+    } else {
+        Ok(Outcome::NotConverged(format!(
+            "{} of {} groups did not converge ({by} = {})",
+            bad.len(),
+            doc.groups.len(),
+            bad.join(", ")
+        )))
+    }
+}
+
+/// CSV header of the batch summary for these parameters.
+pub fn batch_csv_header(params: &[String]) -> Vec<String> {
+    let mut h: Vec<String> = ["group", "status", "n_obs", "iterations", "ssr"]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+    for p in params {
+        h.push(format!("{p}_estimate"));
+        h.push(format!("{p}_std_error"));
+    }
+    h.push("message".into());
+    h
+}
+
+fn opt_csv(v: Option<f64>) -> String {
+    v.map(csv_number).unwrap_or_default()
+}
+
+/// The batch summary as CSV: a header, then one row per group.
+pub fn batch_csv(doc: &BatchDoc, params: &[String]) -> String {
+    let mut out = csv_line(&batch_csv_header(params));
+    for r in &doc.groups {
+        let mut cells = vec![
+            r.group.clone(),
+            r.status.as_str().to_string(),
+            r.n_obs.to_string(),
+            r.iterations.to_string(),
+            opt_csv(r.ssr),
+        ];
+        for p in &r.parameters {
+            cells.push(opt_csv(p.estimate));
+            cells.push(opt_csv(p.std_error));
+        }
+        cells.push(r.message.clone());
+        out += &csv_line(&cells);
+    }
+    out
+}
+
+/// The batch summary as an aligned table (messages listed below it).
+pub fn batch_table(doc: &BatchDoc, params: &[String]) -> String {
+    let mut headers: Vec<String> = vec![
+        doc.by.clone(),
+        "status".into(),
+        "rows".into(),
+        "iterations".into(),
+        "ssr".into(),
+    ];
+    for p in params {
+        headers.push(p.clone());
+        headers.push(format!("se({p})"));
+    }
+    let mut align = vec![Align::Left, Align::Left];
+    align.resize(headers.len(), Align::Right);
+    let num = |v: Option<f64>| v.map_or("n/a".to_string(), |v| format_number(v, SIGNIFICANT));
+    let rows: Vec<Vec<String>> = doc
+        .groups
+        .iter()
+        .map(|r| {
+            let mut c = vec![
+                r.group.clone(),
+                r.status.as_str().to_string(),
+                r.n_obs.to_string(),
+                r.iterations.to_string(),
+                num(r.ssr),
+            ];
+            for p in &r.parameters {
+                c.push(num(p.estimate));
+                c.push(num(p.std_error));
+            }
+            c
+        })
+        .collect();
+    let heads: Vec<&str> = headers.iter().map(String::as_str).collect();
+    let mut out = format!(
+        "model      {}\ndata       {}\nresponse   {}\ngroups     {} by {}\n\n",
+        doc.model,
+        doc.data,
+        doc.response,
+        doc.groups.len(),
+        doc.by
+    );
+    out += &aligned_table(&heads, &align, &rows);
+    let notes: Vec<String> = doc
+        .groups
+        .iter()
+        .filter(|r| !r.message.is_empty())
+        .map(|r| format!("  - {} = {}: {}", doc.by, r.group, r.message))
+        .chain(doc.warnings.iter().map(|w| format!("  - {w}")))
+        .collect();
+    if !notes.is_empty() {
+        out += "\nnotes\n";
+        out += &(notes.join("\n") + "\n");
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn groups_keep_the_order_of_first_appearance() {
+        let (g, missing) = groups_of(&[3.0, 1.0, 3.0, f64::NAN, 2.5, 1.0]);
+        assert_eq!(missing, 1);
+        let keys: Vec<f64> = g.iter().map(|(k, _)| *k).collect();
+        assert_eq!(keys, vec![3.0, 1.0, 2.5]);
+        assert_eq!(g[0].1, vec![0, 2]);
+        assert_eq!(g[1].1, vec![1, 5]);
+        assert_eq!(format!("{}", 3.0_f64), "3");
+    }
+}

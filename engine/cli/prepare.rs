@@ -1,0 +1,122 @@
+//! The steps every command shares before fitting: read the table, resolve
+//! and bind the model, keep the rows it can use, bind the problem, take the
+//! starting values, and run Levenberg–Marquardt.
+
+use super::args::InputArgs;
+use super::auto_start::starts_for;
+use super::model_arg::{bind_model, resolve_model, ModelSpec};
+use super::starts::parse_starts;
+use crate::data::{read_table, Dataset, ReadOptions};
+use crate::error::Error;
+use crate::fit::lm::{levenberg_marquardt, LmOptions, LmResult};
+use crate::fit::problem::Problem;
+use crate::fit::stats::{summarize, FitSummary};
+use crate::report::fit_table::FitContext;
+use crate::symbolic::Model;
+use std::io::Write;
+use std::time::Instant;
+
+/// Reads the table named by the input arguments (and reports it when verbose).
+pub fn read_input(input: &InputArgs, verbose: bool, err: &mut dyn Write) -> Result<Dataset, Error> {
+    let clock = Instant::now();
+    let opts = ReadOptions {
+        sheet: input.sheet.clone(),
+        ..ReadOptions::default()
+    };
+    let data = read_table(&input.data, &opts)?;
+    if verbose {
+        let _ = writeln!(
+            err,
+            "foothold: read {} rows x {} columns ({}) from {} in {:.1} ms",
+            data.n_rows(),
+            data.columns.len(),
+            data.column_list(),
+            data.source,
+            clock.elapsed().as_secs_f64() * 1e3
+        );
+    }
+    Ok(data)
+}
+
+/// Checks that `--x`/`--y`-style options name columns of the data.
+fn check_column(data: &Dataset, option: &str, name: &str) -> Result<(), Error> {
+    if data.has_column(name) {
+        Ok(())
+    } else {
+        Err(Error::Usage(format!(
+            "{option} names column '{name}', which is not in {} (columns: {})",
+            data.source,
+            data.column_list()
+        )))
+    }
+}
+
+/// Resolves `--model`/`--x`/`--y` against the data's columns.
+pub fn model_for(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Model), Error> {
+    if let Some(y) = &input.y {
+        check_column(data, "--y", y)?;
+    }
+    if let Some(x) = &input.x {
+        check_column(data, "--x", x)?;
+    }
+    let spec = resolve_model(&input.model, input.x.as_deref())?;
+    let model = bind_model(&spec, data, input.y.as_deref())?;
+    if let Some(y) = &input.y {
+        if model.lhs.is_some() && model.response != *y {
+            return Err(Error::Usage(format!(
+                "--y names '{y}' but the formula's left-hand side uses '{}'; drop --y or make them agree",
+                model.response
+            )));
+        }
+    }
+    Ok((spec, model))
+}
+
+/// A model bound to the rows it can use, with the report's context.
+#[derive(Debug, Clone)]
+pub struct Bound {
+    /// The least-squares problem.
+    pub problem: Problem,
+    /// Model text, data source, response and data warnings.
+    pub context: FitContext,
+}
+
+/// Keeps the rows with every needed cell present and binds the problem.
+pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
+    let mut needed: Vec<&str> = model.vars.iter().map(|s| s.as_str()).collect();
+    needed.push(&model.response);
+    let used = data.select(&needed)?;
+    let mut warnings = Vec::new();
+    if used.skipped_rows > 0 {
+        warnings.push(format!(
+            "skipped {} row{} with an empty cell in {}",
+            used.skipped_rows,
+            if used.skipped_rows == 1 { "" } else { "s" },
+            needed.join(", ")
+        ));
+    }
+    let context = FitContext {
+        model: model.text.clone(),
+        data: data.source.clone(),
+        response: model.response.clone(),
+        skipped_rows: used.skipped_rows,
+        warnings,
+    };
+    let problem = Problem::new(model, &used)?;
+    Ok(Bound { problem, context })
+}
+
+/// The starting values: the `--start` items when given, else the automatic hook.
+pub fn starting_values(items: &[String], problem: &Problem) -> Result<Vec<f64>, Error> {
+    if items.iter().all(|s| s.trim().is_empty()) {
+        return starts_for(problem);
+    }
+    parse_starts(items, &problem.model.params).map_err(|e| Error::Usage(e.to_string()))
+}
+
+/// Runs Levenberg–Marquardt from `start` and summarises the result.
+pub fn run_fit(problem: &Problem, start: &[f64]) -> (LmResult, FitSummary) {
+    let result = levenberg_marquardt(problem, start, &LmOptions::default());
+    let summary = summarize(&problem.model.params, &result);
+    (result, summary)
+}

@@ -1,0 +1,150 @@
+//! `foothold report`: fit the model and write one self-contained HTML page
+//! (data, features, starting values, ranking, estimates, plots, caution).
+
+use super::args::ReportArgs;
+use super::output::{emit, write_plots};
+use super::prepare::{bind_rows, model_for, read_input, run_fit, starting_values};
+use super::Outcome;
+use crate::error::Error;
+use crate::features::detect;
+use crate::report::assemble::{fit_sheet, report_input, survey_panels, ReportParts};
+use crate::report::html::{render_report, StartingValueRow};
+use std::io::Write;
+
+/// Today's date (UTC) as YYYY-MM-DD, or the date of `SOURCE_DATE_EPOCH` when
+/// set, for reproducible pages.
+pub fn report_date() -> String {
+    let secs = std::env::var("SOURCE_DATE_EPOCH")
+        .ok()
+        .and_then(|s| s.trim().parse::<i64>().ok())
+        .unwrap_or_else(|| {
+            std::time::SystemTime::now()
+                .duration_since(std::time::UNIX_EPOCH)
+                .map(|d| d.as_secs() as i64)
+                .unwrap_or(0)
+        });
+    let (y, m, d) = civil_from_days(secs.div_euclid(86_400));
+    format!("{y:04}-{m:02}-{d:02}")
+}
+
+/// Gregorian date of a day count since 1970-01-01 (Hinnant 2013, "chrono-compatible
+/// low-level date algorithms", civil_from_days).
+fn civil_from_days(z: i64) -> (i64, u32, u32) {
+    let z = z + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = (doy - (153 * mp + 2) / 5 + 1) as u32;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 } as u32;
+    let y = yoe + era * 400 + i64::from(m <= 2);
+    (y, m, d)
+}
+
+/// Runs `report`; the page goes to `--out` (atomically) or to `out`.
+pub fn run_report(
+    args: &ReportArgs,
+    out: &mut dyn Write,
+    err: &mut dyn Write,
+) -> Result<Outcome, Error> {
+    if args.search.by.is_some() {
+        return Err(Error::Usage(
+            "report --by is not available yet; use 'foothold fit --by' for grouped fits".into(),
+        ));
+    }
+    let data = read_input(&args.input, false, err)?;
+    let (spec, model) = model_for(&args.input, &data)?;
+    let bound = bind_rows(model, &data)?;
+    let problem = &bound.problem;
+    let given = args.start.iter().any(|s| !s.trim().is_empty());
+    let start = starting_values(&args.start, problem)?;
+    let (result, summary) = run_fit(problem, &start);
+    let derivation = if given {
+        "given on the command line (--start)"
+    } else {
+        // LEAD: replace with each parameter's derivation from inference.
+        "worked out by foothold"
+    };
+    let starts: Vec<StartingValueRow> = problem
+        .model
+        .params
+        .iter()
+        .zip(&start)
+        .map(|(p, v)| StartingValueRow {
+            parameter: p.clone(),
+            value: *v,
+            derivation: derivation.into(),
+        })
+        .collect();
+    let x = problem.x.first().map(Vec::as_slice).unwrap_or(&[]);
+    let features = detect(x, &problem.y);
+    let file = std::path::Path::new(&data.source)
+        .file_name()
+        .map(|f| f.to_string_lossy().into_owned())
+        .unwrap_or_else(|| data.source.clone());
+    let title = match spec.library {
+        Some(m) => format!("Fit of the {} model to {file}", m.name),
+        None => format!("Fit to {file}"),
+    };
+    let mut warnings = Vec::new();
+    if !summary.converged {
+        warnings.push(format!(
+            "The fit did not converge (stop reason: {}); the estimates are where it stopped.",
+            summary.stop_reason
+        ));
+    }
+    let parts = ReportParts {
+        title,
+        date: report_date(),
+        context: &bound.context,
+        rows_read: data.n_rows(),
+        problem,
+        features: &features,
+        starts,
+        // LEAD: the ranked minima of the multistart search go here.
+        minima: Vec::new(),
+        summary: &summary,
+        warnings,
+    };
+    let page = render_report(&report_input(&parts));
+    if let Some(dir) = &args.plots {
+        let x_name = problem.model.vars.first().cloned().unwrap_or_default();
+        let panels = survey_panels(&features, &x_name, &bound.context.response);
+        let sheet = fit_sheet(
+            problem,
+            &start,
+            &result.params,
+            &format!("Fit of {}", bound.context.model),
+        );
+        write_plots(dir, &panels, &sheet)?;
+    }
+    if !args.quiet {
+        for w in bound.context.warnings.iter().chain(&summary.warnings) {
+            let _ = writeln!(err, "foothold: warning: {w}");
+        }
+    }
+    emit(&page, args.out.as_deref(), out)?;
+    if summary.converged {
+        Ok(Outcome::Success)
+    } else {
+        Ok(Outcome::NotConverged(format!(
+            "the fit did not converge (stop reason: {}); the report shows where it stopped",
+            summary.stop_reason
+        )))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn dates_from_day_counts() {
+        // 1970-01-01 is day 0; 2000-03-01 is day 11017; 2024-02-29 is day 19782 (from memory).
+        assert_eq!(civil_from_days(0), (1970, 1, 1));
+        assert_eq!(civil_from_days(11_017), (2000, 3, 1));
+        assert_eq!(civil_from_days(19_782), (2024, 2, 29));
+        assert_eq!(civil_from_days(-1), (1969, 12, 31));
+    }
+}

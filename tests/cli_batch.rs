@@ -1,0 +1,228 @@
+//! Grouped fits (`fit --by`) through the real binary: one summary row per
+//! group in order of first appearance, a failing group that does not stop
+//! the others, exit codes, and atomic output files.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+fn scratch(test: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("foothold-batch-{}-{test}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn entries(dir: &Path) -> Vec<String> {
+    let mut v: Vec<String> = std::fs::read_dir(dir)
+        .unwrap()
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    v.sort();
+    v
+}
+
+/// Invented: y = a*exp(-k*x) for groups 7, 3 and 5 (rows interleaved);
+/// group 3 has only two rows, too few for two parameters.
+fn grouped_file(dir: &Path) -> PathBuf {
+    let mut text = String::from("batch,x,y\n");
+    let params = [(7.0, 10.0, 0.3), (5.0, 4.0, 0.8)];
+    for i in 0..12 {
+        let x = i as f64 * 0.5;
+        for (g, a, k) in params {
+            if i == 0 && g == 5.0 {
+                text += "3,0.5,2.0\n3,1.0,1.5\n";
+            }
+            text += &format!("{g},{x},{:.15}\n", a * (-k * x).exp());
+        }
+    }
+    let p = dir.join("groups.csv");
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+#[test]
+fn creep_specimens_fit_one_curve_each() {
+    // Demo data generated with e0 = 0.110, 0.125, 0.098 and m = 0.42, 0.45,
+    // 0.40 for specimens 1, 2, 3, plus noise (demo-data/README.md).
+    let d = scratch("creep");
+    let out_file = d.join("creep.csv");
+    let (code, out, err) = run(&[
+        "fit",
+        "demo-data/creep_specimens.csv",
+        "--model",
+        "strain = e0 + a*hours^m",
+        "--start",
+        "e0=0.1,a=0.02,m=0.4",
+        "--by",
+        "specimen",
+        "--format",
+        "csv",
+        "--out",
+        out_file.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.is_empty(), "output went to the file: {out}");
+    assert_eq!(entries(&d), vec!["creep.csv"], "no temporary files left");
+    let csv = std::fs::read_to_string(&out_file).unwrap();
+    let lines: Vec<&str> = csv.lines().collect();
+    assert_eq!(
+        lines[0],
+        "group,status,n_obs,iterations,ssr,a_estimate,a_std_error,e0_estimate,e0_std_error,m_estimate,m_std_error,message"
+    );
+    assert_eq!(lines.len(), 4, "{csv}");
+    let want = [("1", 0.110, 0.42), ("2", 0.125, 0.45), ("3", 0.098, 0.40)];
+    for (line, (g, e0, m)) in lines[1..].iter().zip(want) {
+        let c: Vec<&str> = line.split(',').collect();
+        assert_eq!(c[0], g);
+        assert_eq!(c[1], "converged");
+        assert_eq!(c[2], "23");
+        let e0_fit: f64 = c[7].parse().unwrap();
+        let m_fit: f64 = c[9].parse().unwrap();
+        assert!((e0_fit - e0).abs() < 0.012, "specimen {g}: e0 {e0_fit}");
+        assert!((m_fit - m).abs() < 0.04, "specimen {g}: m {m_fit}");
+    }
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn a_failing_group_does_not_stop_the_others() {
+    let d = scratch("fail");
+    let data = grouped_file(&d);
+    let args = [
+        "fit",
+        data.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--start",
+        "a=5,k=0.5",
+        "--by",
+        "batch",
+        "--format",
+        "json",
+    ];
+    let (code, out, err) = run(&args);
+    assert_eq!(code, 1, "one group failed: {err}");
+    assert!(err.contains("group batch = 3: failed"), "{err}");
+    assert!(
+        err.contains("1 of 3 groups did not converge (batch = 3)"),
+        "{err}"
+    );
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let groups = v["groups"].as_array().unwrap();
+    let keys: Vec<&str> = groups
+        .iter()
+        .map(|g| g["group"].as_str().unwrap())
+        .collect();
+    assert_eq!(keys, vec!["7", "3", "5"], "order of first appearance");
+    assert_eq!(groups[1]["status"], "failed");
+    assert!(
+        groups[1]["message"].as_str().unwrap().contains("too few"),
+        "{}",
+        groups[1]
+    );
+    assert!(groups[1]["parameters"][0]["estimate"].is_null());
+    for (g, a, k) in [(0, 10.0, 0.3), (2, 4.0, 0.8)] {
+        assert_eq!(groups[g]["status"], "converged");
+        assert_eq!(groups[g]["n_obs"], 12);
+        let p = groups[g]["parameters"].as_array().unwrap();
+        assert_eq!(p[0]["name"], "a");
+        let (ga, gk) = (
+            p[0]["estimate"].as_f64().unwrap(),
+            p[1]["estimate"].as_f64().unwrap(),
+        );
+        assert!((ga - a).abs() < 1e-8 && (gk - k).abs() < 1e-8, "{ga} {gk}");
+    }
+    // Deterministic: the same run gives the same bytes.
+    assert_eq!(run(&args).1, out);
+    // The table names the group column and marks the failure.
+    let (code, table, _) = run(&[
+        "fit",
+        data.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--start",
+        "a=5,k=0.5",
+        "--by",
+        "batch",
+        "-q",
+    ]);
+    assert_eq!(code, 1);
+    assert!(table.contains("batch  status"), "{table}");
+    assert!(
+        table
+            .lines()
+            .any(|l| l.starts_with("3") && l.contains("failed")),
+        "{table}"
+    );
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn bad_group_options_exit_two() {
+    let d = scratch("bad");
+    let data = grouped_file(&d);
+    let p = data.to_str().unwrap();
+    for (args, want) in [
+        (
+            vec![
+                "fit",
+                p,
+                "--model",
+                "a*exp(-k*x)",
+                "--start",
+                "a=5,k=0.5",
+                "--by",
+                "lot",
+            ],
+            "--by names column 'lot'",
+        ),
+        (
+            vec![
+                "fit",
+                p,
+                "--model",
+                "a*exp(-k*x)",
+                "--start",
+                "a=5,k=0.5",
+                "--by",
+                "x",
+            ],
+            "the model uses 'x' itself",
+        ),
+        (
+            vec![
+                "fit",
+                p,
+                "--model",
+                "a*exp(-k*x)",
+                "--start",
+                "a=5,k=0.5",
+                "--by",
+                "batch",
+                "--plots",
+                "pl",
+            ],
+            "cannot be combined with --by",
+        ),
+    ] {
+        let (code, out, err) = run(&args);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        assert!(out.is_empty());
+        assert!(err.contains(want), "{args:?}: {err}");
+    }
+    let _ = std::fs::remove_dir_all(&d);
+}

@@ -1,0 +1,228 @@
+//! Output formats of `fit` through the real binary: table, JSON, YAML and
+//! CSV agree on the numbers; JSON has every field docs/schema/fit.schema.json
+//! requires; `--out` writes the file atomically.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+fn scratch(test: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("foothold-formats-{}-{test}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+/// Invented: y = 2 + 6/(1 + exp(-1.5*(x - 4))) on x = 0 .. 10, no noise, so
+/// the least-squares estimates are these values.
+fn logistic_file(dir: &Path) -> PathBuf {
+    let mut text = String::from("x,y\n");
+    for i in 0..=40 {
+        let x = i as f64 * 0.25;
+        text += &format!(
+            "{x},{:.17e}\n",
+            2.0 + 6.0 / (1.0 + (-1.5 * (x - 4.0)).exp())
+        );
+    }
+    let p = dir.join("logistic.csv");
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn fit_args<'a>(data: &'a str, format: &'a str) -> Vec<&'a str> {
+    vec![
+        "fit",
+        data,
+        "--model",
+        "logistic-4",
+        "--start",
+        "bottom=1,top=7,mid=3.5,slope=1",
+        "--format",
+        format,
+    ]
+}
+
+const TRUE: [(&str, f64); 4] = [("bottom", 2.0), ("mid", 4.0), ("slope", 1.5), ("top", 8.0)];
+
+#[test]
+fn every_format_gives_the_same_estimates() {
+    let d = scratch("all");
+    let data = logistic_file(&d);
+    let p = data.to_str().unwrap();
+
+    let (code, json, err) = run(&fit_args(p, "json"));
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    for (i, (name, want)) in TRUE.iter().enumerate() {
+        assert_eq!(v["parameters"][i]["name"], *name);
+        let got = v["parameters"][i]["estimate"].as_f64().unwrap();
+        assert!((got - want).abs() < 1e-7, "{name}: {got}");
+    }
+
+    let (code, yaml, _) = run(&fit_args(p, "yaml"));
+    assert_eq!(code, 0);
+    let y: serde_yaml_ng::Value = serde_yaml_ng::from_str(&yaml).unwrap();
+    for (i, (name, want)) in TRUE.iter().enumerate() {
+        assert_eq!(y["parameters"][i]["name"].as_str(), Some(*name));
+        let got = y["parameters"][i]["estimate"].as_f64().unwrap();
+        assert!((got - want).abs() < 1e-7, "{name}: {got}");
+    }
+    assert_eq!(y["converged"].as_bool(), Some(true));
+
+    let (code, csv, _) = run(&fit_args(p, "csv"));
+    assert_eq!(code, 0);
+    let lines: Vec<&str> = csv.lines().collect();
+    assert_eq!(lines[0], "name,estimate,std_error,t_value,ci_low,ci_high");
+    assert_eq!(lines.len(), 5);
+    for (line, (name, want)) in lines[1..].iter().zip(TRUE) {
+        let c: Vec<&str> = line.split(',').collect();
+        assert_eq!(c.len(), 6);
+        assert_eq!(c[0], name);
+        let got: f64 = c[1].parse().unwrap();
+        assert!((got - want).abs() < 1e-7, "{name}: {got}");
+        assert_eq!(
+            c[1].parse::<f64>().unwrap(),
+            v["parameters"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .find(|q| q["name"] == name)
+                .unwrap()["estimate"]
+                .as_f64()
+                .unwrap(),
+            "CSV keeps full precision"
+        );
+    }
+
+    let (code, table, _) = run(&fit_args(p, "table"));
+    assert_eq!(code, 0);
+    let row = table.lines().find(|l| l.starts_with("top ")).unwrap();
+    assert!(row.contains("8.000000"), "{table}");
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+/// The `required` arrays of a JSON schema object, at the top and for array items.
+fn required(schema: &serde_json::Value) -> Vec<String> {
+    schema["required"]
+        .as_array()
+        .map(|a| {
+            a.iter()
+                .filter_map(|s| s.as_str().map(String::from))
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+#[test]
+fn fit_json_has_every_field_the_schema_requires() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let schema: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(root.join("docs/schema/fit.schema.json")).unwrap(),
+    )
+    .unwrap();
+    let d = scratch("schema");
+    let data = logistic_file(&d);
+    let (code, json, err) = run(&fit_args(data.to_str().unwrap(), "json"));
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let top = required(&schema);
+    assert!(top.len() >= 10);
+    for field in &top {
+        assert!(v.get(field).is_some(), "missing {field}");
+        let kind = &schema["properties"][field]["type"];
+        let ok = match kind {
+            serde_json::Value::String(t) => type_matches(&v[field], t),
+            serde_json::Value::Array(ts) => ts
+                .iter()
+                .any(|t| type_matches(&v[field], t.as_str().unwrap())),
+            _ => true,
+        };
+        assert!(ok, "{field} is not {kind}: {}", v[field]);
+    }
+    let item = &schema["properties"]["parameters"]["items"];
+    for p in v["parameters"].as_array().unwrap() {
+        for field in required(item) {
+            assert!(p.get(&field).is_some(), "parameter lacks {field}: {p}");
+        }
+    }
+    // The other schemas parse and name the documented fields.
+    let infer: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(root.join("docs/schema/infer.schema.json")).unwrap(),
+    )
+    .unwrap();
+    assert_eq!(
+        required(&infer["properties"]["parameters"]["items"]),
+        vec!["name", "start", "derivation"]
+    );
+    let rank: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(root.join("docs/schema/rank.schema.json")).unwrap(),
+    )
+    .unwrap();
+    let cand = &rank["properties"]["candidates"]["items"];
+    assert_eq!(
+        required(cand),
+        vec!["rank", "parameters", "ssr", "share", "iterations"]
+    );
+    assert_eq!(
+        required(&cand["properties"]["parameters"]["items"]),
+        vec!["name", "start", "estimate"]
+    );
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+fn type_matches(v: &serde_json::Value, t: &str) -> bool {
+    match t {
+        "string" => v.is_string(),
+        "number" => v.is_number(),
+        "integer" => v.is_u64() || v.is_i64(),
+        "boolean" => v.is_boolean(),
+        "array" => v.is_array(),
+        "object" => v.is_object(),
+        "null" => v.is_null(),
+        _ => false,
+    }
+}
+
+#[test]
+fn out_writes_a_complete_file_and_no_temporary() {
+    let d = scratch("out");
+    let data = logistic_file(&d);
+    let target = d.join("fit.yaml");
+    let mut args = fit_args(data.to_str().unwrap(), "yaml");
+    args.extend(["--out", target.to_str().unwrap()]);
+    let (code, out, err) = run(&args);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.is_empty());
+    let text = std::fs::read_to_string(&target).unwrap();
+    assert!(
+        text.starts_with("model: ") && text.contains("warnings:"),
+        "{text}"
+    );
+    let mut names: Vec<String> = std::fs::read_dir(&d)
+        .unwrap()
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    assert_eq!(names, vec!["fit.yaml", "logistic.csv"]);
+    // A directory that does not exist: exit 2, nothing written.
+    let bad = d.join("nowhere/fit.yaml");
+    let mut args = fit_args(data.to_str().unwrap(), "json");
+    args.extend(["--out", bad.to_str().unwrap()]);
+    let (code, _, err) = run(&args);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("cannot write"), "{err}");
+    let _ = std::fs::remove_dir_all(&d);
+}
