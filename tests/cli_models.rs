@@ -133,7 +133,7 @@ fn x_renames_the_variable_of_a_written_formula() {
 
 #[test]
 fn mapping_mistakes_exit_two() {
-    let cases: [(&[&str], &str); 4] = [
+    let cases: [(&[&str], &str); 3] = [
         (
             &[
                 "fit",
@@ -174,19 +174,6 @@ fn mapping_mistakes_exit_two() {
                 "rate",
             ],
             "foothold models",
-        ),
-        (
-            &[
-                "infer",
-                "demo-data/enzyme_assay.csv",
-                "--model",
-                "michaelis-menten",
-                "--x",
-                "substrate",
-                "--y",
-                "rate",
-            ],
-            "inference is not available yet",
         ),
     ];
     for (args, want) in cases {

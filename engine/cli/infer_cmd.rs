@@ -1,107 +1,191 @@
-//! `foothold infer`: starting values for every parameter, printed as a table,
-//! JSON, YAML or CSV (`parameters: [{name, start, derivation}]`, see
-//! docs/schema/infer.schema.json). The values come from the automatic hook.
+//! `foothold infer`: read the data, bind the model, work out starting values
+//! from the model and the data, and print each with its derivation.
 
 use super::args::{Format, InferArgs};
-use super::auto_start::starts_for;
 use super::prepare::{bind_rows, model_for, read_input};
 use super::Outcome;
 use crate::error::Error;
-use crate::report::fit_table::{format_number, SIGNIFICANT};
-use crate::report::formats::{aligned_table, csv_line, csv_number, to_json, to_yaml, Align};
+use crate::features::{XAxis, YTransform};
+use crate::infer::{infer, InferOptions, Inference};
+use crate::report::fit_table::format_number;
 use serde::Serialize;
 use std::io::Write;
+use std::time::Instant;
 
-/// One starting value and how it was obtained.
-#[derive(Debug, Clone, Serialize)]
-pub struct StartJson {
-    pub name: String,
-    pub start: Option<f64>,
-    pub derivation: String,
-}
-
-/// The `infer` document.
-#[derive(Debug, Clone, Serialize)]
-pub struct InferDoc {
-    pub model: String,
-    pub data: String,
-    pub response: String,
-    pub parameters: Vec<StartJson>,
-}
-
-/// Renders the starting values in the chosen format.
-pub fn render_starts(doc: &InferDoc, format: Format) -> Result<String, Error> {
-    Ok(match format {
-        Format::Json => {
-            to_json(doc).map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
-        }
-        Format::Yaml => {
-            to_yaml(doc).map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
-        }
-        Format::Csv => {
-            let mut t = csv_line(&["name", "start", "derivation"]);
-            for p in &doc.parameters {
-                t += &csv_line(&[
-                    p.name.clone(),
-                    p.start.map(csv_number).unwrap_or_default(),
-                    p.derivation.clone(),
-                ]);
-            }
-            t
-        }
-        Format::Table => {
-            let rows: Vec<Vec<String>> = doc
-                .parameters
-                .iter()
-                .map(|p| {
-                    vec![
-                        p.name.clone(),
-                        p.start
-                            .map_or("n/a".into(), |v| format_number(v, SIGNIFICANT)),
-                        p.derivation.clone(),
-                    ]
-                })
-                .collect();
-            format!(
-                "model      {}\ndata       {}\nresponse   {}\n\n",
-                doc.model, doc.data, doc.response
-            ) + &aligned_table(
-                &["parameter", "start", "how it was found"],
-                &[Align::Left, Align::Right, Align::Left],
-                &rows,
-            )
-        }
-    })
-}
-
-/// Runs `infer`.
+/// Runs `infer`; the result goes to `out`, warnings and details to `err`.
 pub fn run_infer(
     args: &InferArgs,
     out: &mut dyn Write,
     err: &mut dyn Write,
 ) -> Result<Outcome, Error> {
-    let data = read_input(&args.input, args.output.verbose, err)?;
-    let (_, model) = model_for(&args.input, &data)?;
+    let input = &args.input;
+    let verbose = args.output.verbose;
+    let data = read_input(input, verbose, err)?;
+    let (_, model) = model_for(input, &data)?;
     let bound = bind_rows(model, &data)?;
-    let start = starts_for(&bound.problem)?;
-    let doc = InferDoc {
-        model: bound.context.model.clone(),
-        data: bound.context.data.clone(),
-        response: bound.context.response.clone(),
-        parameters: bound
-            .problem
-            .model
-            .params
+    let clock = Instant::now();
+    let inf =
+        infer(&bound.problem, &InferOptions::default()).map_err(|e| Error::Usage(e.to_string()))?;
+    if verbose {
+        let _ = writeln!(
+            err,
+            "foothold: inference took {:.1} ms; {} candidates",
+            clock.elapsed().as_secs_f64() * 1e3,
+            inf.candidates.len()
+        );
+    }
+    if !args.output.quiet {
+        for w in &bound.context.warnings {
+            let _ = writeln!(err, "foothold: warning: {w}");
+        }
+    }
+    let text = match args.output.format {
+        Format::Table => infer_table(&inf, &bound.problem.model.text, &bound.context.data),
+        Format::Json => infer_json(&inf, &bound.problem.model.text, &bound.context.data)
+            .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?,
+        Format::Yaml => {
+            let json = infer_json(&inf, &bound.problem.model.text, &bound.context.data)
+                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?;
+            let value: serde_json::Value = serde_json::from_str(&json)
+                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?;
+            serde_yaml_ng::to_string(&value)
+                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
+        }
+        Format::Csv => infer_csv(&inf),
+    };
+    let _ = out.write_all(text.as_bytes());
+    Ok(Outcome::Success)
+}
+
+/// One row per parameter: name, start (full precision; empty when not finite), derivation.
+pub fn infer_csv(inf: &Inference) -> String {
+    let mut s = String::from("name,start,derivation\n");
+    for p in &inf.parameters {
+        let v = if p.start.is_finite() { format!("{:e}", p.start) } else { String::new() };
+        s.push_str(&format!("{},{},\"{}\"\n", p.name, v, p.derivation.replace('"', "\"\"")));
+    }
+    s
+}
+
+fn fmt(v: f64) -> String {
+    format_number(v, 7)
+}
+
+/// The inference as a plain-text table: parameters, then candidates and features.
+pub fn infer_table(inf: &Inference, model: &str, source: &str) -> String {
+    let mut s = String::new();
+    s.push_str(&format!("Starting values for {model}\nData: {source}\n\n"));
+    let wn = inf
+        .parameters
+        .iter()
+        .map(|p| p.name.chars().count())
+        .max()
+        .unwrap_or(0)
+        .max("parameter".len());
+    let starts: Vec<String> = inf.parameters.iter().map(|p| fmt(p.start)).collect();
+    let ws = starts
+        .iter()
+        .map(|t| t.len())
+        .max()
+        .unwrap_or(0)
+        .max("start".len());
+    s.push_str(&format!(
+        "{:<wn$}  {:>ws$}  derivation\n",
+        "parameter", "start"
+    ));
+    for (p, st) in inf.parameters.iter().zip(&starts) {
+        s.push_str(&format!("{:<wn$}  {:>ws$}  {}\n", p.name, st, p.derivation));
+    }
+    s.push_str("\nCandidates (residual sum of squares, strategy):\n");
+    for (i, c) in inf.candidates.iter().enumerate() {
+        s.push_str(&format!("  {}. {}  {}\n", i + 1, fmt(c.ssr), c.strategy));
+    }
+    s.push_str("\nFeatures of the data:\n");
+    s.push_str(&format!(
+        "  noise sd ≈ {} (relative {})\n",
+        fmt(inf.features.noise),
+        fmt(inf.features.relative_noise)
+    ));
+    if let Some(v) = inf.features.view(XAxis::Linear, YTransform::Identity) {
+        let f = &v.features;
+        if let Some(m) = &f.monotonicity {
+            s.push_str(&format!("  shape: {:?}\n", m.direction));
+        }
+        for (label, p) in [("low end", &f.low_plateau), ("high end", &f.high_plateau)] {
+            if let Some(p) = p {
+                s.push_str(&format!(
+                    "  {label}: level {} ({})\n",
+                    fmt(p.level),
+                    if p.reached {
+                        "plateau reached"
+                    } else {
+                        "still changing"
+                    }
+                ));
+            }
+        }
+        for pk in &f.peaks.peaks {
+            s.push_str(&format!(
+                "  peak at x ≈ {}, height {}{}\n",
+                fmt(pk.centre),
+                fmt(pk.height),
+                pk.hwhm
+                    .map(|h| format!(", half width {}", fmt(h)))
+                    .unwrap_or_default()
+            ));
+        }
+        for pd in f.periods.iter().filter(|p| p.false_alarm < 0.01).take(3) {
+            s.push_str(&format!(
+                "  period ≈ {} (power ratio {})\n",
+                fmt(pd.period),
+                format_number(pd.power_ratio, 3)
+            ));
+        }
+    }
+    for n in &inf.notes {
+        s.push_str(&format!("Note: {n}\n"));
+    }
+    s
+}
+
+#[derive(Serialize)]
+struct ParamOut<'a> {
+    name: &'a str,
+    start: f64,
+    derivation: &'a str,
+}
+
+#[derive(Serialize)]
+struct InferOut<'a> {
+    model: &'a str,
+    data: &'a str,
+    parameters: Vec<ParamOut<'a>>,
+    features: &'a crate::features::DataFeatures,
+    candidates: &'a [crate::infer::Candidate],
+    scales: &'a [crate::infer::ScanRange],
+    notes: &'a [String],
+}
+
+/// The inference as JSON (non-finite numbers become `null`).
+pub fn infer_json(inf: &Inference, model: &str, source: &str) -> Result<String, serde_json::Error> {
+    let doc = InferOut {
+        model,
+        data: source,
+        parameters: inf
+            .parameters
             .iter()
-            .zip(&start)
-            .map(|(n, v)| StartJson {
-                name: n.clone(),
-                start: v.is_finite().then_some(*v),
-                // LEAD: each parameter's derivation from inference.
-                derivation: String::new(),
+            .map(|p| ParamOut {
+                name: &p.name,
+                start: p.start,
+                derivation: &p.derivation,
             })
             .collect(),
+        features: &inf.features,
+        candidates: &inf.candidates,
+        scales: &inf.scales,
+        notes: &inf.notes,
     };
-    let _ = out.write_all(render_starts(&doc, args.output.format)?.as_bytes());
-    Ok(Outcome::Success)
+    let mut s = serde_json::to_string_pretty(&doc)?;
+    s.push('\n');
+    Ok(s)
 }
