@@ -60,7 +60,7 @@ pub fn infer_and_search(
     let symmetries = find_symmetries(&problem.model);
     let mut opts = opts.clone();
     opts.sign_flips = find_sign_flips(&problem.model);
-    let outcome = search(
+    let mut outcome = search(
         problem,
         &problem.model.params,
         &candidates,
@@ -68,6 +68,9 @@ pub fn infer_and_search(
         &symmetries,
         &opts,
     );
+    for m in outcome.minima.iter_mut() {
+        crate::infer::canonical_labelling(problem, &mut m.params);
+    }
     Ok((inf, outcome))
 }
 

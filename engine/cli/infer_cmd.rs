@@ -61,8 +61,17 @@ pub fn run_infer(
 pub fn infer_csv(inf: &Inference) -> String {
     let mut s = String::from("name,start,derivation\n");
     for p in &inf.parameters {
-        let v = if p.start.is_finite() { format!("{:e}", p.start) } else { String::new() };
-        s.push_str(&format!("{},{},\"{}\"\n", p.name, v, p.derivation.replace('"', "\"\"")));
+        let v = if p.start.is_finite() {
+            format!("{:e}", p.start)
+        } else {
+            String::new()
+        };
+        s.push_str(&format!(
+            "{},{},\"{}\"\n",
+            p.name,
+            v,
+            p.derivation.replace('"', "\"\"")
+        ));
     }
     s
 }

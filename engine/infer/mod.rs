@@ -203,3 +203,14 @@ pub fn infer(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferE
         notes,
     })
 }
+
+/// Puts a parameter vector (e.g. a minimum found by the search) into the same
+/// canonical labelling of exchangeable terms that inference uses, so that every
+/// answer for the same fit reads the same.
+pub fn canonical_labelling(problem: &Problem, p: &mut [f64]) {
+    let roles = crate::symbolic::roles::roles(&problem.model);
+    let sc = scales::param_scales(problem, &roles);
+    let exchange = symmetry::exchangeable(&problem.model, &sc);
+    let mut why = vec![String::new(); p.len()];
+    symmetry::canonical(&exchange, &problem.model.params, p, &mut why);
+}

@@ -2,8 +2,8 @@
 
 pub mod assemble;
 pub mod atomic;
+pub mod fit_json;
+pub mod fit_table;
 pub mod formats;
 pub mod html;
 pub mod plot;
-pub mod fit_json;
-pub mod fit_table;
