@@ -274,13 +274,13 @@ fn bad_starts() {
 }
 
 #[test]
-fn usage_errors_and_commands_not_available_yet() {
+fn usage_errors() {
     let (code, _, err) = run(&["fit", "--model", "a*x"], b"");
     assert_eq!(code, 2);
     assert!(err.starts_with("foothold: error: "), "{err}");
     assert!(!err.contains("panicked"));
     fails_with(
-        &["rank", "d.csv", "--model", "a*x"],
-        &["rank", "not available yet"],
+        &["rank", "no-such-file.csv", "--model", "a*x"],
+        &["no-such-file.csv"],
     );
 }

@@ -20,7 +20,7 @@ pub enum Command {
     Fit(FitArgs),
     /// Work out starting values from the model and the data, with how each was obtained.
     Infer(InferArgs),
-    /// Rank candidate starts by a multistart search (not available yet).
+    /// Rank candidate starts by a multistart search: distinct minima with the starts that reach them.
     Rank(RankArgs),
     /// Write a full HTML report of a fit: data, features, starts, estimates, plots.
     Report(ReportArgs),

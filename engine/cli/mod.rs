@@ -12,6 +12,7 @@ pub mod model_arg;
 pub mod models_cmd;
 pub mod output;
 pub mod prepare;
+pub mod rank_cmd;
 pub mod report_cmd;
 pub mod starts;
 
@@ -58,7 +59,7 @@ where
     let result = match &cli.command {
         Command::Fit(a) => fit_cmd::run_fit(a, out, err),
         Command::Infer(a) => infer_cmd::run_infer(a, out, err),
-        Command::Rank(_) => not_yet("rank"),
+        Command::Rank(a) => rank_cmd::run_rank(a, out, err),
         Command::Report(a) => report_cmd::run_report(a, out, err),
         Command::Models(a) => models_cmd::run_models(a, out),
     };
@@ -73,12 +74,6 @@ where
             EXIT_USAGE
         }
     }
-}
-
-fn not_yet(command: &str) -> Result<Outcome, crate::error::Error> {
-    Err(crate::error::Error::Usage(format!(
-        "'{command}' is not available yet; use 'foothold fit' with --start for now"
-    )))
 }
 
 /// Help and version go to `out` with exit 0; usage errors to `err` with exit 2.
@@ -154,13 +149,13 @@ mod tests {
     }
 
     #[test]
-    fn later_commands_are_not_available_yet() {
+    fn rank_options_parse_and_models_lists_the_library() {
         let args = [
             "rank", "d.csv", "--model", "a*x", "--starts", "50", "--seed", "7", "--top", "3",
         ];
         let (code, _, err) = run_args(&args);
         assert_eq!(code, 2, "{args:?}");
-        assert!(err.contains("is not available yet"), "{args:?}: {err}");
+        assert!(err.contains("d.csv: no such file"), "{args:?}: {err}");
         let (code, out, _) = run_args(&["models"]);
         assert_eq!(code, 0);
         assert!(

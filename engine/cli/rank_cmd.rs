@@ -1,0 +1,194 @@
+//! `foothold rank`: inference, then the multistart search; prints the distinct
+//! minima ranked by convergence, each with the start that reached it, so that a
+//! chosen start can be plugged into any other fitter.
+
+use super::args::{Format, RankArgs};
+use super::auto_start::infer_and_search;
+use super::prepare::{bind_rows, model_for, read_input};
+use super::Outcome;
+use crate::error::Error;
+use crate::report::fit_table::format_number;
+use crate::search::{SearchOptions, SearchOutcome};
+use serde::Serialize;
+use std::io::Write;
+
+/// One parameter of a ranked candidate.
+#[derive(Debug, Serialize)]
+pub struct RankedParam {
+    pub name: String,
+    pub start: Option<f64>,
+    pub estimate: Option<f64>,
+}
+
+/// One ranked minimum as documented in `docs/schema/rank.schema.json`.
+#[derive(Debug, Serialize)]
+pub struct RankedCandidate {
+    pub rank: usize,
+    pub parameters: Vec<RankedParam>,
+    pub ssr: Option<f64>,
+    pub share: Option<f64>,
+    pub iterations: Option<f64>,
+    pub divergent: Vec<String>,
+}
+
+fn finite(v: f64) -> Option<f64> {
+    v.is_finite().then_some(v)
+}
+
+/// The search options a command line asks for (defaults otherwise).
+pub fn search_options(args: &super::args::SearchArgs) -> SearchOptions {
+    let mut o = SearchOptions::default();
+    if let Some(n) = args.starts {
+        o.starts = n.max(1);
+    }
+    if let Some(s) = args.seed {
+        o.seed = s;
+    }
+    if let Some(t) = args.time_limit.filter(|t| t.is_finite() && *t > 0.0) {
+        o.time_limit = Some(std::time::Duration::from_secs_f64(t));
+    }
+    o
+}
+
+/// The ranked minima in the documented shape.
+pub fn ranked(names: &[String], outcome: &SearchOutcome, top: usize) -> Vec<RankedCandidate> {
+    outcome
+        .minima
+        .iter()
+        .take(top)
+        .map(|m| RankedCandidate {
+            rank: m.rank,
+            parameters: names
+                .iter()
+                .enumerate()
+                .map(|(i, n)| RankedParam {
+                    name: n.clone(),
+                    start: m.start.get(i).copied().and_then(finite),
+                    estimate: m.params.get(i).copied().and_then(finite),
+                })
+                .collect(),
+            ssr: finite(m.ssr),
+            share: finite(m.share),
+            iterations: finite(m.iterations_median),
+            divergent: m
+                .divergent
+                .iter()
+                .filter_map(|&i| names.get(i).cloned())
+                .collect(),
+        })
+        .collect()
+}
+
+/// Runs `rank`.
+pub fn run_rank(
+    args: &RankArgs,
+    out: &mut dyn Write,
+    err: &mut dyn Write,
+) -> Result<Outcome, Error> {
+    if args.search.by.is_some() {
+        return Err(Error::Usage(
+            "rank --by is not supported; rank one curve at a time".into(),
+        ));
+    }
+    let verbose = args.output.verbose;
+    let data = read_input(&args.input, verbose, err)?;
+    let (_, model) = model_for(&args.input, &data)?;
+    let bound = bind_rows(model, &data)?;
+    if !args.output.quiet {
+        for w in &bound.context.warnings {
+            let _ = writeln!(err, "foothold: warning: {w}");
+        }
+    }
+    let (_, outcome) = infer_and_search(&bound.problem, &search_options(&args.search))?;
+    let names = &bound.problem.model.params;
+    let list = ranked(names, &outcome, args.top.unwrap_or(5).max(1));
+    let text = match args.output.format {
+        Format::Json => {
+            let doc = serde_json::json!({
+                "model": bound.problem.model.text,
+                "candidates_tried": outcome.candidates_tried,
+                "minima_found": outcome.minima.len(),
+                "candidates": list,
+            });
+            serde_json::to_string_pretty(&doc)
+                .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
+                + "\n"
+        }
+        Format::Yaml => {
+            let doc = serde_json::json!({ "candidates_tried": outcome.candidates_tried, "minima_found": outcome.minima.len(), "candidates": list });
+            serde_yaml_ng::to_string(&doc)
+                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
+        }
+        Format::Csv => {
+            let mut s = String::from("rank,parameter,start,estimate,ssr,share,iterations\n");
+            for c in &list {
+                for p in &c.parameters {
+                    let f = |v: Option<f64>| v.map(|x| format!("{x:e}")).unwrap_or_default();
+                    s.push_str(&format!(
+                        "{},{},{},{},{},{},{}\n",
+                        c.rank,
+                        p.name,
+                        f(p.start),
+                        f(p.estimate),
+                        f(c.ssr),
+                        f(c.share),
+                        f(c.iterations)
+                    ));
+                }
+            }
+            s
+        }
+        Format::Table => {
+            let mut s = format!(
+                "model   {}\nsearch  {} local fits, {} distinct minima\n",
+                bound.problem.model.text,
+                outcome.candidates_tried,
+                outcome.minima.len()
+            );
+            for c in &list {
+                let g = |v: Option<f64>| {
+                    v.map(|x| format_number(x, 7))
+                        .unwrap_or_else(|| "n/a".into())
+                };
+                s.push_str(&format!(
+                    "\nrank {}  ssr {}  share {}  median iterations {}{}\n",
+                    c.rank,
+                    g(c.ssr),
+                    g(c.share),
+                    g(c.iterations),
+                    if c.divergent.is_empty() {
+                        String::new()
+                    } else {
+                        format!("  runs to infinity: {}", c.divergent.join(", "))
+                    }
+                ));
+                let w = c
+                    .parameters
+                    .iter()
+                    .map(|p| p.name.len())
+                    .max()
+                    .unwrap_or(0)
+                    .max(9);
+                s.push_str(&format!(
+                    "  {:<w$}  {:>14}  {:>14}\n",
+                    "parameter", "start", "estimate"
+                ));
+                for p in &c.parameters {
+                    s.push_str(&format!(
+                        "  {:<w$}  {:>14}  {:>14}\n",
+                        p.name,
+                        g(p.start),
+                        g(p.estimate)
+                    ));
+                }
+            }
+            s
+        }
+    };
+    let _ = out.write_all(text.as_bytes());
+    Ok(if outcome.minima.iter().any(|m| m.divergent.is_empty()) {
+        Outcome::Success
+    } else {
+        Outcome::NotConverged("no proper minimum found: every minimum runs to infinity".into())
+    })
+}

@@ -1,0 +1,43 @@
+//! `foothold rank` on the real binary: ranked minima with their starts.
+
+use std::process::Command;
+
+#[test]
+fn rank_lists_the_saturation_minimum_first_with_its_start() {
+    // demo-data/enzyme_assay.csv was generated with vmax = 42.5, km = 1.8 plus noise
+    // (demo-data/README.md); the least-squares minimum lies close to them.
+    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
+        .args([
+            "rank",
+            "demo-data/enzyme_assay.csv",
+            "--model",
+            "rate = vmax*substrate/(km + substrate)",
+            "--format",
+            "json",
+            "--seed",
+            "7",
+        ])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("runs");
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let first = &v["candidates"][0];
+    assert_eq!(first["rank"], 1);
+    let p = first["parameters"].as_array().unwrap();
+    let est = |n: &str| {
+        p.iter().find(|q| q["name"] == n).unwrap()["estimate"]
+            .as_f64()
+            .unwrap()
+    };
+    assert!((est("vmax") - 42.5).abs() < 1.0, "vmax {}", est("vmax"));
+    assert!((est("km") - 1.8).abs() < 0.2, "km {}", est("km"));
+    assert!(p.iter().all(|q| q["start"].is_number()));
+    assert!(first["share"].as_f64().unwrap() > 0.0);
+    assert!(v["candidates_tried"].as_u64().unwrap() >= 1);
+}
