@@ -24,14 +24,22 @@ use std::time::{Duration, Instant};
 /// Starting-value inference for one problem: ranked candidate starts and each
 /// parameter's natural scale.
 ///
-/// TODO(lead): wire up once `engine/infer` lands, e.g.
-/// `let inf = foothold::infer::infer(problem, &Default::default()); (inf.candidates, inf.scales)`
-/// (adapting the candidate type to plain `Vec<f64>` points if needed).
-/// Until then nothing is inferred: the search starts from typical scales of 1,
-/// searched over ±2 decades with both signs, and column (a) measures the search alone.
+/// The inferred candidates and each parameter's natural scale, as the `fit`
+/// command uses them (`cli::auto_start`).
 fn inferred_starts(problem: &Problem) -> (Vec<Vec<f64>>, Vec<ParamScale>, bool) {
-    let _ = problem;
-    (Vec::new(), Vec::new(), false)
+    match foothold::infer::infer(problem, &Default::default()) {
+        Ok(inf) => {
+            let cands = inf.candidates.iter().map(|c| c.params.clone()).collect();
+            let scales = inf
+                .scales
+                .iter()
+                .zip(&inf.start)
+                .map(|(r, s)| foothold::cli::auto_start::scale_from_range(r, *s))
+                .collect();
+            (cands, scales, true)
+        }
+        Err(_) => (Vec::new(), Vec::new(), false),
+    }
 }
 
 /// The certified arctan model assumes a branch of arctan in (0, π): with the

@@ -371,7 +371,6 @@ impl fmt::Display for Display<'_> {
 
 #[cfg(test)]
 mod tests {
-    use super::*;
     use crate::symbolic::parse::parse_formula;
 
     /// Parses, prints with the parsed names, and returns the printed text.
