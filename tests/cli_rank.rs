@@ -41,3 +41,31 @@ fn rank_lists_the_saturation_minimum_first_with_its_start() {
     assert!(first["share"].as_f64().unwrap() > 0.0);
     assert!(v["candidates_tried"].as_u64().unwrap() >= 1);
 }
+
+#[test]
+fn fit_without_starts_reports_the_search() {
+    // demo-data/part_cooling.csv was generated with k = 0.085 (demo-data/README.md).
+    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
+        .args([
+            "fit",
+            "demo-data/part_cooling.csv",
+            "--model",
+            "temp = ambient + delta*exp(-k*minutes)",
+            "--format",
+            "json",
+        ])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("runs");
+    assert_eq!(out.status.code(), Some(0));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    assert!(v["candidates_tried"].as_u64().unwrap() >= 1);
+    assert!(v["minima_found"].as_u64().unwrap() >= 1);
+    let k = v["parameters"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["name"] == "k")
+        .unwrap();
+    assert!((k["estimate"].as_f64().unwrap() - 0.085).abs() < 0.002);
+}

@@ -78,11 +78,18 @@ pub fn infer_and_search(
 /// point of the best-ranked minimum found from the inferred candidates (the
 /// inferred start itself when the search finds no proper minimum).
 pub fn starts_for(problem: &Problem) -> Result<Vec<f64>, Error> {
+    Ok(starts_and_counts(problem)?.0)
+}
+
+/// As [`starts_for`], with (local fits tried, distinct minima found).
+pub fn starts_and_counts(problem: &Problem) -> Result<(Vec<f64>, (usize, usize)), Error> {
     let (inf, outcome) = infer_and_search(problem, &SearchOptions::default())?;
-    Ok(outcome
+    let counts = (outcome.candidates_tried, outcome.minima.len());
+    let start = outcome
         .minima
         .iter()
         .find(|m| m.divergent.is_empty() && m.params.iter().all(|v| v.is_finite()))
         .map(|m| m.params.clone())
-        .unwrap_or(inf.start))
+        .unwrap_or(inf.start);
+    Ok((start, counts))
 }

@@ -5,7 +5,9 @@
 use super::args::{FitArgs, Format};
 use super::batch::run_batch;
 use super::output::{emit, write_plots};
-use super::prepare::{bind_rows, model_for, read_input, run_fit as lm_fit, starting_values};
+use super::prepare::{
+    bind_rows, model_for, read_input, run_fit as lm_fit, starting_values_searched,
+};
 use super::Outcome;
 use crate::error::Error;
 use crate::features::detect;
@@ -40,9 +42,10 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
             model.response
         );
     }
-    let bound = bind_rows(model, &data)?;
+    let mut bound = bind_rows(model, &data)?;
+    let (start, searched) = starting_values_searched(&args.start, &bound.problem)?;
+    bound.context.search = searched;
     let problem = &bound.problem;
-    let start = starting_values(&args.start, problem)?;
     let fit_clock = Instant::now();
     let (result, summary) = lm_fit(problem, &start);
     if verbose {

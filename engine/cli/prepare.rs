@@ -101,6 +101,7 @@ pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
         response: model.response.clone(),
         skipped_rows: used.skipped_rows,
         warnings,
+        search: None,
     };
     let problem = Problem::new(model, &used)?;
     Ok(Bound { problem, context })
@@ -112,6 +113,19 @@ pub fn starting_values(items: &[String], problem: &Problem) -> Result<Vec<f64>, 
         return starts_for(problem);
     }
     parse_starts(items, &problem.model.params).map_err(|e| Error::Usage(e.to_string()))
+}
+
+/// As [`starting_values`], also saying how the search went when it ran:
+/// (local fits tried, distinct minima found).
+pub fn starting_values_searched(
+    items: &[String],
+    problem: &Problem,
+) -> Result<(Vec<f64>, Option<(usize, usize)>), Error> {
+    if items.iter().all(|s| s.trim().is_empty()) {
+        let (start, counts) = crate::cli::auto_start::starts_and_counts(problem)?;
+        return Ok((start, Some(counts)));
+    }
+    Ok((starting_values(items, problem)?, None))
 }
 
 /// Runs Levenberg–Marquardt from `start` and summarises the result.

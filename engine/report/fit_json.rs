@@ -36,6 +36,12 @@ pub struct FitJson<'a> {
     /// Row i, column j: correlation of parameters i and j (parameter order).
     pub correlation: Vec<Vec<Option<f64>>>,
     pub warnings: Vec<&'a str>,
+    /// Local fits run by the multistart search (only when no starts were given).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub candidates_tried: Option<usize>,
+    /// Distinct minima the search found (only when no starts were given).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub minima_found: Option<usize>,
 }
 
 fn finite(v: f64) -> Option<f64> {
@@ -74,6 +80,8 @@ pub fn fit_document<'a>(summary: &'a FitSummary, ctx: &'a FitContext) -> FitJson
         iterations: summary.iterations,
         evaluations: summary.evaluations,
         stop_reason: &summary.stop_reason,
+        candidates_tried: ctx.search.map(|s| s.0),
+        minima_found: ctx.search.map(|s| s.1),
         condition_number: finite(summary.condition_number),
         correlation: summary
             .correlation
@@ -102,6 +110,7 @@ mod tests {
             response: "y".into(),
             skipped_rows: 1,
             warnings: vec!["skipped 1 row".into()],
+            search: None,
         };
         let text = fit_json(&sample_summary(), &ctx).unwrap();
         let v: serde_json::Value = serde_json::from_str(&text).unwrap();

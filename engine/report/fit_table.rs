@@ -16,6 +16,8 @@ pub struct FitContext {
     pub skipped_rows: usize,
     /// Warnings from reading the data (fit warnings live in the summary).
     pub warnings: Vec<String>,
+    /// When the starts were found by the multistart search: (local fits tried, distinct minima).
+    pub search: Option<(usize, usize)>,
 }
 
 /// Significant digits for estimates, errors, intervals and sums of squares.
@@ -222,6 +224,7 @@ pub(crate) mod tests {
             response: "y".into(),
             skipped_rows: 2,
             warnings: vec!["skipped 2 rows with a missing value in t, y".into()],
+            search: None,
         };
         let t = fit_table(&sample_summary(), &ctx);
         let lines: Vec<&str> = t.lines().collect();

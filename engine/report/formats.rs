@@ -159,6 +159,7 @@ mod tests {
             response: "y".into(),
             skipped_rows: 0,
             warnings: vec![],
+            search: None,
         };
         let y = fit_yaml(&sample_summary(), &ctx).unwrap();
         let v: serde_yaml_ng::Value = serde_yaml_ng::from_str(&y).unwrap();
