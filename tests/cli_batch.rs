@@ -2,38 +2,11 @@
 //! group in order of first appearance, a failing group that does not stop
 //! the others, exit codes, and atomic output files.
 
+mod common;
+
+use common::cli::{file_names, run, scratch};
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
-
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
-
-fn scratch(test: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("foothold-batch-{}-{test}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn entries(dir: &Path) -> Vec<String> {
-    let mut v: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .flatten()
-        .map(|e| e.file_name().to_string_lossy().into_owned())
-        .collect();
-    v.sort();
-    v
-}
 
 /// Invented: y = a*exp(-k*x) for groups 7, 3 and 5 (rows interleaved);
 /// group 3 has only two rows, too few for two parameters.
@@ -76,7 +49,7 @@ fn creep_specimens_fit_one_curve_each() {
     ]);
     assert_eq!(code, 0, "{err}");
     assert!(out.is_empty(), "output went to the file: {out}");
-    assert_eq!(entries(&d), vec!["creep.csv"], "no temporary files left");
+    assert_eq!(file_names(&d), vec!["creep.csv"], "no temporary files left");
     let csv = std::fs::read_to_string(&out_file).unwrap();
     let lines: Vec<&str> = csv.lines().collect();
     assert_eq!(

@@ -1,28 +1,9 @@
 //! Real fits through the `foothold` binary from good starting values.
 //! Needs the Levenberg–Marquardt fitter, `Problem` and `summarize`.
 
-use std::path::PathBuf;
-use std::process::Command;
+mod common;
 
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
-
-fn scratch_file(test: &str, text: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("foothold-fit-{}-{}", std::process::id(), test));
-    std::fs::create_dir_all(&dir).unwrap();
-    let p = dir.join("data.csv");
-    std::fs::write(&p, text).unwrap();
-    p
-}
+use common::cli::{run, scratch_file};
 
 fn estimate(json: &serde_json::Value, name: &str) -> f64 {
     json["parameters"]

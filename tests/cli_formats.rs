@@ -2,28 +2,11 @@
 //! CSV agree on the numbers; JSON has every field docs/schema/fit.schema.json
 //! requires; `--out` writes the file atomically.
 
+mod common;
+
+use common::cli::{run, scratch};
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
-
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
-
-fn scratch(test: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("foothold-formats-{}-{test}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
 
 /// Invented: y = 2 + 6/(1 + exp(-1.5*(x - 4))) on x = 0 .. 10, no noise, so
 /// the least-squares estimates are these values.

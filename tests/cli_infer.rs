@@ -1,28 +1,9 @@
 //! `foothold infer` through the binary: starting values with derivations, as a
 //! table and as JSON, and the usage errors of the shared input handling.
 
-use std::path::PathBuf;
-use std::process::Command;
+mod common;
 
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
-
-fn scratch_file(test: &str, text: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("foothold-infer-{}-{}", std::process::id(), test));
-    std::fs::create_dir_all(&dir).unwrap();
-    let p = dir.join("data.csv");
-    std::fs::write(&p, text).unwrap();
-    p
-}
+use common::cli::{run, scratch_file};
 
 /// A cooling curve of our own: temperature = 20 + 60·exp(−0.15·minutes), no noise.
 fn cooling() -> String {

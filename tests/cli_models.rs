@@ -1,20 +1,9 @@
 //! The model library through the real binary: `foothold models` in every
 //! format, and `--model NAME` with `--x`/`--y` mapping on the demo data.
 
-use std::process::Command;
+mod common;
 
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use common::cli::run;
 
 fn estimate(json: &serde_json::Value, name: &str) -> (f64, f64) {
     let p = json["parameters"]

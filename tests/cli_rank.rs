@@ -1,32 +1,25 @@
 //! `foothold rank` on the real binary: ranked minima with their starts.
 
-use std::process::Command;
+mod common;
+
+use common::cli::run;
 
 #[test]
 fn rank_lists_the_saturation_minimum_first_with_its_start() {
     // demo-data/enzyme_assay.csv was generated with vmax = 42.5, km = 1.8 plus noise
     // (demo-data/README.md); the least-squares minimum lies close to them.
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .args([
-            "rank",
-            "demo-data/enzyme_assay.csv",
-            "--model",
-            "rate = vmax*substrate/(km + substrate)",
-            "--format",
-            "json",
-            "--seed",
-            "7",
-        ])
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .output()
-        .expect("runs");
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let (code, out, err) = run(&[
+        "rank",
+        "demo-data/enzyme_assay.csv",
+        "--model",
+        "rate = vmax*substrate/(km + substrate)",
+        "--format",
+        "json",
+        "--seed",
+        "7",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).expect("json");
     let first = &v["candidates"][0];
     assert_eq!(first["rank"], 1);
     let p = first["parameters"].as_array().unwrap();
@@ -45,20 +38,16 @@ fn rank_lists_the_saturation_minimum_first_with_its_start() {
 #[test]
 fn fit_without_starts_reports_the_search() {
     // demo-data/part_cooling.csv was generated with k = 0.085 (demo-data/README.md).
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .args([
-            "fit",
-            "demo-data/part_cooling.csv",
-            "--model",
-            "temp = ambient + delta*exp(-k*minutes)",
-            "--format",
-            "json",
-        ])
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .output()
-        .expect("runs");
-    assert_eq!(out.status.code(), Some(0));
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let (code, out, err) = run(&[
+        "fit",
+        "demo-data/part_cooling.csv",
+        "--model",
+        "temp = ambient + delta*exp(-k*minutes)",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).expect("json");
     assert!(v["candidates_tried"].as_u64().unwrap() >= 1);
     assert!(v["minima_found"].as_u64().unwrap() >= 1);
     let k = v["parameters"]

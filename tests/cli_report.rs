@@ -2,39 +2,13 @@
 //! a browser renders it: headless Chromium dumps the DOM and takes a
 //! screenshot (skipped with a message when Chromium is absent, except in CI).
 
+mod common;
+
+use common::cli::{file_names, run, scratch};
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
-
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_foothold"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
-
-fn scratch(test: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("foothold-report-{}-{test}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn names(dir: &Path) -> Vec<String> {
-    let mut v: Vec<String> = std::fs::read_dir(dir)
-        .unwrap()
-        .flatten()
-        .map(|e| e.file_name().to_string_lossy().into_owned())
-        .collect();
-    v.sort();
-    v
-}
 
 /// Writes the cooling demo's report (and plots) into `dir`.
 fn cooling_report(dir: &Path) -> PathBuf {
@@ -66,12 +40,12 @@ fn report_holds_estimates_plots_and_caution() {
     let d = scratch("page");
     let html_path = cooling_report(&d);
     assert_eq!(
-        names(&d),
+        file_names(&d),
         vec!["plots", "report.html"],
         "no temporary files"
     );
     assert_eq!(
-        names(&d.join("plots")),
+        file_names(&d.join("plots")),
         vec!["fit.png", "fit.svg", "survey.png", "survey.svg"]
     );
     for f in ["fit.png", "survey.png"] {

@@ -15,26 +15,6 @@ use foothold::symbolic::Model;
 /// Cases drawn per form.
 const PER_FORM: usize = 20;
 
-/// Evaluates a form's model at the given predictors and named parameters (tree walking).
-fn eval_form(formula: &str, x: &[(String, Vec<f64>)], truth: &[(String, f64)]) -> Vec<f64> {
-    let mut cols: Vec<String> = x.iter().map(|(n, _)| n.clone()).collect();
-    cols.push("y".into());
-    let m = Model::new(formula, &cols, Some("y")).expect("form parses");
-    let p: Vec<f64> = m
-        .params
-        .iter()
-        .map(|n| truth.iter().find(|(t, _)| t == n).expect("truth").1)
-        .collect();
-    let xs: Vec<&Vec<f64>> = m
-        .vars
-        .iter()
-        .map(|v| &x.iter().find(|(n, _)| n == v).expect("column").1)
-        .collect();
-    (0..xs[0].len())
-        .map(|i| m.rhs.eval(&p, &xs.iter().map(|c| c[i]).collect::<Vec<_>>()))
-        .collect()
-}
-
 /// Binds a case as a problem; returns it with the true parameters in model order.
 fn problem_of(c: &Case) -> (Problem, Vec<f64>) {
     let mut cols: Vec<String> = c.x.iter().map(|(n, _)| n.clone()).collect();
@@ -64,7 +44,7 @@ fn synthetic_suite_from_inferred_starts() {
     for f in forms() {
         let mut form_ok = 0;
         for i in 0..PER_FORM {
-            let c = draw_case(&f, &mut r, &|x, t| eval_form(f.formula, x, t));
+            let c = draw_case(&f, &mut r);
             let (pr, truth) = problem_of(&c);
             let opts = LmOptions::default();
             let from_truth = levenberg_marquardt(&pr, &truth, &opts);

@@ -5,6 +5,8 @@
 
 #![allow(dead_code)]
 
+use foothold::symbolic::Model;
+
 /// SplitMix64 (Steele, Lea & Flood 2014): a small, fast, seedable generator, so the
 /// suite is identical on every machine and needs no crate.
 pub struct Rng(u64);
@@ -565,15 +567,30 @@ pub fn forms() -> Vec<Form> {
     ]
 }
 
-/// Draws one case of a form: predictors, truth, and a noisy response from `eval`,
-/// which evaluates the form's model at given predictors and parameters.
-pub fn draw_case(
-    form: &Form,
-    r: &mut Rng,
-    eval: &dyn Fn(&[(String, Vec<f64>)], &[(String, f64)]) -> Vec<f64>,
-) -> Case {
+/// Evaluates a form's model at the given predictors and named parameters (tree walking).
+pub fn eval_form(formula: &str, x: &[(String, Vec<f64>)], truth: &[(String, f64)]) -> Vec<f64> {
+    let mut cols: Vec<String> = x.iter().map(|(n, _)| n.clone()).collect();
+    cols.push("y".into());
+    let m = Model::new(formula, &cols, Some("y")).expect("form parses");
+    let p: Vec<f64> = m
+        .params
+        .iter()
+        .map(|n| truth.iter().find(|(t, _)| t == n).expect("truth").1)
+        .collect();
+    let xs: Vec<&Vec<f64>> = m
+        .vars
+        .iter()
+        .map(|v| &x.iter().find(|(n, _)| n == v).expect("column").1)
+        .collect();
+    (0..xs[0].len())
+        .map(|i| m.rhs.eval(&p, &xs.iter().map(|c| c[i]).collect::<Vec<_>>()))
+        .collect()
+}
+
+/// Draws one case of a form: predictors, truth, and a noisy response.
+pub fn draw_case(form: &Form, r: &mut Rng) -> Case {
     let (x, truth) = (form.draw)(r);
-    let clean = eval(&x, &truth);
+    let clean = eval_form(form.formula, &x, &truth);
     let (lo, hi) = clean
         .iter()
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
