@@ -39,6 +39,27 @@ impl<'a> Projector<'a> {
         }
     }
 
+    /// Evaluates the offset and the basis columns at the nonlinear values in
+    /// `p` (one buffer: offset, then the m columns, each n long) and returns it
+    /// with the target y − offset of the linear solve.
+    fn basis_and_target(&self, p: &[f64]) -> (Vec<f64>, Vec<f64>) {
+        let n = self.n;
+        let mut buf = vec![0.0; n * (self.sep.linear.len() + 1)];
+        {
+            let cols = self.problem.columns();
+            let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
+            self.tape.eval(p, &cols, &mut outs);
+        }
+        let b = self
+            .problem
+            .y
+            .iter()
+            .zip(&buf[..n])
+            .map(|(y, o)| y - o)
+            .collect();
+        (buf, b)
+    }
+
     /// Number of rows.
     pub fn n_rows(&self) -> usize {
         self.n
@@ -64,16 +85,9 @@ impl<'a> Projector<'a> {
     /// The projected residuals y − offset − G·c at the nonlinear values in `p`
     /// (false when the model is not finite there).
     pub fn residuals_into(&self, p: &[f64], r: &mut [f64]) -> bool {
-        let n = self.n;
-        let m = self.sep.linear.len();
-        let mut buf = vec![0.0; n * (m + 1)];
-        {
-            let cols = self.problem.columns();
-            let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
-            self.tape.eval(p, &cols, &mut outs);
-        }
-        let (off, g) = buf.split_at(n);
-        let b: Vec<f64> = self.problem.y.iter().zip(off).map(|(y, o)| y - o).collect();
+        let (n, m) = (self.n, self.sep.linear.len());
+        let (buf, b) = self.basis_and_target(p);
+        let g = &buf[n..];
         let coef = if m == 0 {
             Vec::new()
         } else {
@@ -94,16 +108,9 @@ impl<'a> Projector<'a> {
 
     /// The linear coefficients and the residual sum of squares, without writing.
     pub fn solve(&self, p: &[f64]) -> Option<(Vec<f64>, f64)> {
-        let n = self.n;
-        let m = self.sep.linear.len();
-        let mut buf = vec![0.0; n * (m + 1)];
-        {
-            let cols = self.problem.columns();
-            let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
-            self.tape.eval(p, &cols, &mut outs);
-        }
-        let (off, g) = buf.split_at(n);
-        let b: Vec<f64> = self.problem.y.iter().zip(off).map(|(y, o)| y - o).collect();
+        let (n, m) = (self.n, self.sep.linear.len());
+        let (buf, b) = self.basis_and_target(p);
+        let g = &buf[n..];
         if m == 0 {
             let ssr: f64 = b.iter().map(|v| v * v).sum();
             return ssr.is_finite().then_some((Vec::new(), ssr));
@@ -115,16 +122,9 @@ impl<'a> Projector<'a> {
     /// The projected residual sum of squares only (cheap path for ranking grid
     /// points; ∞ when the model is not finite there).
     pub fn scan_ssr(&self, p: &[f64]) -> f64 {
-        let n = self.n;
-        let m = self.sep.linear.len();
-        let mut buf = vec![0.0; n * (m + 1)];
-        {
-            let cols = self.problem.columns();
-            let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
-            self.tape.eval(p, &cols, &mut outs);
-        }
-        let (off, g) = buf.split_at(n);
-        let b: Vec<f64> = self.problem.y.iter().zip(off).map(|(y, o)| y - o).collect();
+        let (n, m) = (self.n, self.sep.linear.len());
+        let (buf, b) = self.basis_and_target(p);
+        let g = &buf[n..];
         let s = if m == 0 {
             Some(b.iter().map(|v| v * v).sum::<f64>())
         } else {
