@@ -18,31 +18,42 @@ const PAIR_OF_PAIRS_MAX: usize = 12;
 /// Largest symmetry group enumerated for canonical ordering.
 const GROUP_MAX: usize = 5040;
 
-/// Parameter permutations that leave `model.rhs` unchanged, tested by
-/// evaluating the expression at random parameter and variable values.
-/// Tried: every transposition of two parameters; swaps of the parameters of
-/// two additive terms with equally many parameters (matched in order of first
-/// appearance); and, for up to 12 parameters, every simultaneous swap of two
-/// pairs. Each permutation is returned once, in a fixed order.
-pub fn find_symmetries(model: &Model) -> Vec<Vec<usize>> {
-    let n = model.n_params();
-    let nv = model.vars.len();
-    let mut rng = Rng::new(0x5EED_5A5E);
-    let points: Vec<(Vec<f64>, Vec<f64>)> = (0..TEST_POINTS)
-        .map(|_| {
-            let p = (0..n).map(|_| 0.4 + 1.2 * rng.uniform()).collect();
-            let x = (0..nv).map(|_| 0.3 + 1.6 * rng.uniform()).collect();
-            (p, x)
+/// Random test points and the model's values there, for deciding numerically
+/// whether a change of the parameters leaves `model.rhs` unchanged.
+struct Probe<'a> {
+    model: &'a Model,
+    points: Vec<(Vec<f64>, Vec<f64>)>,
+    base: Vec<f64>,
+}
+
+impl<'a> Probe<'a> {
+    /// Draws the points from `seed`; `None` when the model is finite at too few of them.
+    fn new(model: &'a Model, seed: u64) -> Option<Probe<'a>> {
+        let (n, nv) = (model.n_params(), model.vars.len());
+        let mut rng = Rng::new(seed);
+        let points: Vec<(Vec<f64>, Vec<f64>)> = (0..TEST_POINTS)
+            .map(|_| {
+                let p = (0..n).map(|_| 0.4 + 1.2 * rng.uniform()).collect();
+                let x = (0..nv).map(|_| 0.3 + 1.6 * rng.uniform()).collect();
+                (p, x)
+            })
+            .collect();
+        let base: Vec<f64> = points.iter().map(|(p, x)| model.rhs.eval(p, x)).collect();
+        if base.iter().filter(|v| v.is_finite()).count() < TEST_POINTS / 2 {
+            return None;
+        }
+        Some(Probe {
+            model,
+            points,
+            base,
         })
-        .collect();
-    let base: Vec<f64> = points.iter().map(|(p, x)| model.rhs.eval(p, x)).collect();
-    if base.iter().filter(|v| v.is_finite()).count() < TEST_POINTS / 2 {
-        return Vec::new();
     }
-    let leaves_unchanged = |perm: &[usize]| -> bool {
-        points.iter().zip(&base).all(|((p, x), &f0)| {
-            let q = apply(perm, p);
-            let f1 = model.rhs.eval(&q, x);
+
+    /// True when the model takes the same values (finite or not alike) at the
+    /// changed parameters `change(p)` of every test point.
+    fn unchanged(&self, change: impl Fn(&[f64]) -> Vec<f64>) -> bool {
+        self.points.iter().zip(&self.base).all(|((p, x), &f0)| {
+            let f1 = self.model.rhs.eval(&change(p), x);
             match (f0.is_finite(), f1.is_finite()) {
                 (true, true) => {
                     (f0 - f1).abs() <= AGREE * (f0.abs() + f1.abs()) + f64::MIN_POSITIVE
@@ -51,7 +62,21 @@ pub fn find_symmetries(model: &Model) -> Vec<Vec<usize>> {
                 _ => false,
             }
         })
+    }
+}
+
+/// Parameter permutations that leave `model.rhs` unchanged, tested by
+/// evaluating the expression at random parameter and variable values.
+/// Tried: every transposition of two parameters; swaps of the parameters of
+/// two additive terms with equally many parameters (matched in order of first
+/// appearance); and, for up to 12 parameters, every simultaneous swap of two
+/// pairs. Each permutation is returned once, in a fixed order.
+pub fn find_symmetries(model: &Model) -> Vec<Vec<usize>> {
+    let n = model.n_params();
+    let Some(probe) = Probe::new(model, 0x5EED_5A5E) else {
+        return Vec::new();
     };
+    let leaves_unchanged = |perm: &[usize]| probe.unchanged(|p| apply(perm, p));
 
     let mut tried: Vec<Vec<usize>> = Vec::new();
     let mut push = |perm: Vec<usize>| {
@@ -99,29 +124,16 @@ pub fn find_symmetries(model: &Model) -> Vec<Vec<usize>> {
 /// alone. Each set is sorted; sets come in a fixed order.
 pub fn find_sign_flips(model: &Model) -> Vec<Vec<usize>> {
     let n = model.n_params();
-    let nv = model.vars.len();
-    let mut rng = Rng::new(0x5167_F11B);
-    let points: Vec<(Vec<f64>, Vec<f64>)> = (0..TEST_POINTS)
-        .map(|_| {
-            let p = (0..n).map(|_| 0.4 + 1.2 * rng.uniform()).collect();
-            let x = (0..nv).map(|_| 0.3 + 1.6 * rng.uniform()).collect();
-            (p, x)
-        })
-        .collect();
-    let base: Vec<f64> = points.iter().map(|(p, x)| model.rhs.eval(p, x)).collect();
-    if base.iter().filter(|v| v.is_finite()).count() < TEST_POINTS / 2 {
+    let Some(probe) = Probe::new(model, 0x5167_F11B) else {
         return Vec::new();
-    }
-    let unchanged = |set: &[usize]| -> bool {
-        points.iter().zip(&base).all(|((p, x), &f0)| {
-            let mut q = p.clone();
+    };
+    let unchanged = |set: &[usize]| {
+        probe.unchanged(|p| {
+            let mut q = p.to_vec();
             for &k in set {
                 q[k] = -q[k];
             }
-            let f1 = model.rhs.eval(&q, x);
-            f0.is_finite() == f1.is_finite()
-                && (!f0.is_finite()
-                    || (f0 - f1).abs() <= AGREE * (f0.abs() + f1.abs()) + f64::MIN_POSITIVE)
+            q
         })
     };
     let singles: Vec<usize> = (0..n).filter(|&i| unchanged(&[i])).collect();
