@@ -334,15 +334,7 @@ pub fn fit_facts(summary: &FitSummary) -> Vec<(String, String)> {
         ),
         (
             "Stop reason".into(),
-            format!(
-                "{} ({})",
-                summary.stop_reason,
-                if summary.converged {
-                    "converged"
-                } else {
-                    "NOT converged"
-                }
-            ),
+            crate::report::fit_table::stop_text(summary),
         ),
         (
             "Condition number".into(),

@@ -20,6 +20,16 @@ pub struct FitContext {
     pub search: Option<(usize, usize)>,
 }
 
+/// The stop reason with whether it counts as converged, as tables print it.
+pub fn stop_text(summary: &FitSummary) -> String {
+    let state = if summary.converged {
+        "converged"
+    } else {
+        "NOT converged"
+    };
+    format!("{} ({})", summary.stop_reason, state)
+}
+
 /// Significant digits for estimates, errors, intervals and sums of squares.
 pub const SIGNIFICANT: usize = 7;
 /// Significant digits for t values.
@@ -127,18 +137,7 @@ pub fn fit_table(summary: &FitSummary, ctx: &FitContext) -> String {
                 summary.iterations, summary.evaluations
             ),
         ),
-        (
-            "stop reason",
-            format!(
-                "{} ({})",
-                summary.stop_reason,
-                if summary.converged {
-                    "converged"
-                } else {
-                    "NOT converged"
-                }
-            ),
-        ),
+        ("stop reason", stop_text(summary)),
         (
             "condition number",
             format_number(summary.condition_number, 3),
