@@ -10,14 +10,38 @@ use crate::search::{
 };
 
 /// Converts inference's natural range of a parameter into the search's scale.
+///
+/// The range comes from how the parameter meets the data alone; when the
+/// inferred start lies outside it (a factor whose size depends on another
+/// parameter, such as `a` in `a*exp(-e/T)`), the start is the better evidence
+/// of magnitude: the range is re-centred on it with the same breadth, so the
+/// search samples around the start and does not call its minimum "at infinity".
 pub fn scale_from_range(r: &ScanRange, start: f64) -> ParamScale {
-    let typical = if r.typical.is_finite() && r.typical > 0.0 {
+    let usable = start.is_finite() && start != 0.0;
+    let (mut range_lo, mut range_hi) = (r.lo, r.hi);
+    let mut typical = if r.typical.is_finite() && r.typical > 0.0 {
         r.typical
-    } else if start.is_finite() && start != 0.0 {
+    } else if usable {
         start.abs()
     } else {
         1.0
     };
+    if usable && r.lo.is_finite() && r.hi.is_finite() && r.lo < r.hi {
+        if r.log && r.lo > 0.0 {
+            let m = start.abs();
+            if m < r.lo || m > r.hi {
+                let breadth = (r.hi / r.lo).sqrt();
+                range_lo = m / breadth;
+                range_hi = m * breadth;
+                typical = m;
+            }
+        } else if !r.log && (start < r.lo || start > r.hi) {
+            let half = 0.5 * (r.hi - r.lo);
+            range_lo = start - half;
+            range_hi = start + half;
+            typical = typical.max(start.abs());
+        }
+    }
     let sign = if r.sign_free {
         SignFreedom::Either
     } else if start < 0.0 {
@@ -27,12 +51,12 @@ pub fn scale_from_range(r: &ScanRange, start: f64) -> ParamScale {
     };
     let (lo, hi) = if r.log {
         match sign {
-            SignFreedom::Either => (-r.hi, r.hi),
-            SignFreedom::Negative => (-r.hi, -r.lo),
-            SignFreedom::Positive => (r.lo, r.hi),
+            SignFreedom::Either => (-range_hi, range_hi),
+            SignFreedom::Negative => (-range_hi, -range_lo),
+            SignFreedom::Positive => (range_lo, range_hi),
         }
     } else {
-        (r.lo, r.hi)
+        (range_lo, range_hi)
     };
     ParamScale {
         typical,
@@ -92,4 +116,42 @@ pub fn starts_and_counts(problem: &Problem) -> Result<(Vec<f64>, (usize, usize))
         .map(|m| m.params.clone())
         .unwrap_or(inf.start);
     Ok((start, counts))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn range(lo: f64, hi: f64, log: bool, typical: f64) -> ScanRange {
+        ScanRange {
+            lo,
+            hi,
+            log,
+            sign_free: false,
+            typical,
+        }
+    }
+
+    #[test]
+    fn a_start_inside_the_range_keeps_it() {
+        let s = scale_from_range(&range(0.01, 100.0, true, 1.0), 3.0);
+        assert_eq!((s.lo, s.hi, s.typical), (0.01, 100.0, 1.0));
+        assert_eq!(s.sign, SignFreedom::Positive);
+        let s = scale_from_range(&range(-5.0, 5.0, false, 2.0), -1.0);
+        assert_eq!((s.lo, s.hi, s.typical), (-5.0, 5.0, 2.0));
+    }
+
+    #[test]
+    fn a_start_outside_the_range_recentres_it() {
+        // Breadth 1e4 (four decades), start 1e7 far above: 1e5 .. 1e9 around it.
+        let s = scale_from_range(&range(0.01, 100.0, true, 1.0), -1e7);
+        assert_eq!(s.typical, 1e7);
+        assert_eq!(s.sign, SignFreedom::Negative);
+        assert!(
+            (s.lo + 1e9).abs() < 1.0 && (s.hi + 1e5).abs() < 1e-6,
+            "{s:?}"
+        );
+        let s = scale_from_range(&range(0.0, 10.0, false, 2.0), 40.0);
+        assert_eq!((s.lo, s.hi, s.typical), (35.0, 45.0, 40.0));
+    }
 }
