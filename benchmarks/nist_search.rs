@@ -1,46 +1,31 @@
 //! Global search from nothing on the NIST StRD nonlinear regression suite
 //! (NIST Statistical Reference Datasets, https://www.itl.nist.gov/div898/strd/):
-//! (a) foothold — inferred starts plus the multistart search — against
-//! (b) plain random multistart — uniform / log-uniform random starts in a broad
-//! box — with the same Levenberg–Marquardt options and the SAME number of local
-//! fits. A problem is solved when the best minimum has every parameter within
-//! LRE ≥ 4 of the certified values (StRD methodology; `strd::min_lre`).
+//! (a) foothold as `fit` runs it with no starts — inference, the multistart
+//! search over the inferred candidates, one final local fit from the best
+//! proper minimum — against plain random multistart (random starts in a broad
+//! box, magnitude log-uniform on [1e-3, 1e3], either sign) with the same
+//! Levenberg–Marquardt options: (b) with the SAME number of local fits as (a),
+//! (c) with four times as many. A problem is solved when the result has every
+//! parameter within LRE ≥ 4 of the certified values (StRD methodology;
+//! `strd::min_lre`). Problems run one after another; each search uses both
+//! cores (rayon). Wall times are for the whole suite.
 //!
-//! Run briefly: `cargo bench --bench nist_search` (optionally
-//! `-- <local fits per problem>`, default 24). From a worktree the files are
-//! not at `../shared/nist-strd`: set `FOOTHOLD_STRD_DIR=/work/shared/nist-strd`.
+//! Run: `cargo bench --bench nist_search` (optionally `-- <local fits per
+//! problem>`, default 16, as in tests/nist_no_starts.rs; `fit` itself uses 64).
+//! From a worktree the files are not at `../shared/nist-strd`: set
+//! `FOOTHOLD_STRD_DIR=/work/shared/nist-strd`.
 
 #[path = "../tests/common/strd.rs"]
 mod strd;
 
+use foothold::cli::auto_start::starts_with_options;
 use foothold::fit::lm::{levenberg_marquardt, LmOptions};
 use foothold::fit::problem::Problem;
 use foothold::search::symmetry::{apply, group};
-use foothold::search::{find_sign_flips, find_symmetries, search, ParamScale, SearchOptions};
+use foothold::search::{find_sign_flips, find_symmetries, SearchOptions};
 use foothold::symbolic::Model;
 use rayon::prelude::*;
 use std::time::{Duration, Instant};
-
-/// Starting-value inference for one problem: ranked candidate starts and each
-/// parameter's natural scale.
-///
-/// The inferred candidates and each parameter's natural scale, as the `fit`
-/// command uses them (`cli::auto_start`).
-fn inferred_starts(problem: &Problem) -> (Vec<Vec<f64>>, Vec<ParamScale>, bool) {
-    match foothold::infer::infer(problem, &Default::default()) {
-        Ok(inf) => {
-            let cands = inf.candidates.iter().map(|c| c.params.clone()).collect();
-            let scales = inf
-                .scales
-                .iter()
-                .zip(&inf.start)
-                .map(|(r, s)| foothold::cli::auto_start::scale_from_range(r, *s))
-                .collect();
-            (cands, scales, true)
-        }
-        Err(_) => (Vec::new(), Vec::new(), false),
-    }
-}
 
 /// The certified arctan model assumes a branch of arctan in (0, π): with the
 /// principal branch the same optimum has b1 smaller by exactly 1 (see
@@ -95,28 +80,38 @@ fn random_start(n: usize, state: &mut u64) -> Vec<f64> {
         .collect()
 }
 
-struct Row {
-    name: &'static str,
-    lre_a: f64,
-    time_a: Duration,
-    fits_a: usize,
-    lre_b: f64,
-    time_b: Duration,
-    fits_b: usize,
+/// One method's result on one problem.
+#[derive(Clone, Copy)]
+struct Cell {
+    lre: f64,
+    time: Duration,
+    fits: usize,
+}
+
+/// Plain random multistart: `n` random starts, each fitted, best ssr kept.
+fn random_multistart(problem: &Problem, n: usize, np: usize, lm: &LmOptions) -> Option<Vec<f64>> {
+    let mut state = 0x5EED_0000_0000_0001u64;
+    let starts: Vec<Vec<f64>> = (0..n).map(|_| random_start(np, &mut state)).collect();
+    starts
+        .par_iter()
+        .map(|s| levenberg_marquardt(problem, s, lm))
+        .filter(|r| r.converged && r.ssr.is_finite())
+        .map(|r| (r.ssr, r.params))
+        .min_by(|a, b| a.0.total_cmp(&b.0))
+        .map(|(_, p)| p)
 }
 
 fn main() {
     let fits: usize = std::env::args()
         .skip(1)
         .find_map(|a| a.parse().ok())
-        .unwrap_or(24);
+        .unwrap_or(16);
     if strd::strd_dir().is_none() {
         strd::announce_missing();
         return;
     }
     let lm = LmOptions::default();
-    let mut rows = Vec::new();
-    let mut wired = true;
+    let mut rows: Vec<(&str, [Cell; 3])> = Vec::new();
     for name in strd::PROBLEMS {
         let Some(p) = strd::load(name) else {
             eprintln!("cannot read {name}.dat");
@@ -127,98 +122,83 @@ fn main() {
             continue;
         };
         let x: Vec<Vec<f64>> = model.vars.iter().map(|v| p.column(v)).collect();
-        let names = model.params.clone();
-        let symmetries = find_symmetries(&model);
-        let images = group(&symmetries, names.len());
+        let np = model.params.len();
+        let images = group(&find_symmetries(&model), np);
         let flips = find_sign_flips(&model);
         let Ok(problem) = Problem::from_columns(model, x, p.column("y")) else {
             eprintln!("{name}: data do not make a problem");
             continue;
         };
+        let score = |est: Option<Vec<f64>>| {
+            est.map(|e| lre_of(name, &e, &p.certified, &images, &flips))
+                .unwrap_or(0.0)
+        };
 
-        // (a) foothold: inference + search.
+        // (a) foothold, as `fit` with no starts.
         let t = Instant::now();
-        let (cands, scales, inferred) = inferred_starts(&problem);
-        wired &= inferred;
         let opts = SearchOptions {
             starts: fits,
             seed: 1,
             lm: lm.clone(),
-            sign_flips: flips.clone(),
             ..Default::default()
         };
-        let out = search(&problem, &names, &cands, &scales, &symmetries, &opts);
-        let time_a = t.elapsed();
-        let lre_a = out
-            .minima
-            .first()
-            .map(|m| lre_of(name, &m.params, &p.certified, &images, &flips))
-            .unwrap_or(0.0);
+        let (est, tried) = match starts_with_options(&problem, &opts) {
+            Ok((start, (tried, _))) => (
+                Some(levenberg_marquardt(&problem, &start, &lm).params),
+                tried + 1,
+            ),
+            Err(e) => {
+                eprintln!("{name}: {e}");
+                (None, 0)
+            }
+        };
+        let a = Cell {
+            time: t.elapsed(),
+            lre: score(est),
+            fits: tried,
+        };
 
-        // (b) plain random multistart, same number of local fits.
-        let t = Instant::now();
-        let mut state = 0x5EED_0000_0000_0001u64;
-        let starts: Vec<Vec<f64>> = (0..out.candidates_tried)
-            .map(|_| random_start(names.len(), &mut state))
-            .collect();
-        let best = starts
-            .par_iter()
-            .map(|s| levenberg_marquardt(&problem, s, &lm))
-            .filter(|r| r.converged && r.ssr.is_finite())
-            .map(|r| (r.ssr, r.params))
-            .min_by(|a, b| a.0.total_cmp(&b.0));
-        let time_b = t.elapsed();
-        let lre_b = best
-            .map(|(_, e)| lre_of(name, &e, &p.certified, &images, &flips))
-            .unwrap_or(0.0);
-        rows.push(Row {
-            name,
-            lre_a,
-            time_a,
-            fits_a: out.candidates_tried,
-            lre_b,
-            time_b,
-            fits_b: starts.len(),
-        });
+        // (b), (c) plain random multistart with as many, and four times as many, local fits.
+        let random = |n: usize| {
+            let t = Instant::now();
+            let est = random_multistart(&problem, n, np, &lm);
+            Cell {
+                time: t.elapsed(),
+                lre: score(est),
+                fits: n,
+            }
+        };
+        let b = random(a.fits);
+        let c = random(4 * a.fits);
+        rows.push((name, [a, b, c]));
     }
 
-    if !wired {
-        println!(
-            "NOTE: inference not wired yet (see inferred_starts): column (a) is the search alone."
-        );
-    }
     println!(
-        "{:<10} {:>8} {:>10} {:>8} {:>10}",
-        "problem", "(a) LRE", "(a) time", "(b) LRE", "(b) time"
+        "{:<10} {:>8} {:>9} {:>8} {:>9} {:>8} {:>9}",
+        "problem", "(a) LRE", "(a) time", "(b) LRE", "(b) time", "(c) LRE", "(c) time"
     );
-    for r in &rows {
-        let ok = |l: f64| if l >= 4.0 { "" } else { "*" };
-        println!(
-            "{:<10} {:>7.1}{} {:>9.3}s {:>7.1}{} {:>9.3}s",
-            r.name,
-            r.lre_a,
-            ok(r.lre_a),
-            r.time_a.as_secs_f64(),
-            r.lre_b,
-            ok(r.lre_b),
-            r.time_b.as_secs_f64()
-        );
+    for (name, cells) in &rows {
+        print!("{name:<10}");
+        for c in cells {
+            let mark = if c.lre >= 4.0 { " " } else { "*" };
+            print!(" {:>7.1}{mark} {:>8.3}s", c.lre, c.time.as_secs_f64());
+        }
+        println!();
     }
-    let solved = |f: &dyn Fn(&Row) -> f64| rows.iter().filter(|r| f(r) >= 4.0).count();
-    let total = |f: &dyn Fn(&Row) -> Duration| rows.iter().map(f).sum::<Duration>().as_secs_f64();
     println!("(* = not solved: LRE < 4)");
-    println!(
-        "(a) foothold:        solved {}/{}, local fits {}, wall time {:.2}s",
-        solved(&|r| r.lre_a),
-        rows.len(),
-        rows.iter().map(|r| r.fits_a).sum::<usize>(),
-        total(&|r| r.time_a)
-    );
-    println!(
-        "(b) random multistart: solved {}/{}, local fits {}, wall time {:.2}s",
-        solved(&|r| r.lre_b),
-        rows.len(),
-        rows.iter().map(|r| r.fits_b).sum::<usize>(),
-        total(&|r| r.time_b)
-    );
+    let labels = [
+        "(a) foothold: inference + search + final fit",
+        "(b) random multistart, same local fits",
+        "(c) random multistart, 4x the local fits",
+    ];
+    for (k, label) in labels.iter().enumerate() {
+        let solved = rows.iter().filter(|r| r.1[k].lre >= 4.0).count();
+        let fits: usize = rows.iter().map(|r| r.1[k].fits).sum();
+        let wall: f64 = rows.iter().map(|r| r.1[k].time.as_secs_f64()).sum();
+        let mean = rows.iter().map(|r| r.1[k].lre).sum::<f64>() / rows.len().max(1) as f64;
+        println!(
+            "{label:<45} solved {solved}/{}, mean LRE {mean:.2}, local fits {fits}, wall time {wall:.2}s",
+            rows.len()
+        );
+    }
 }

@@ -107,7 +107,15 @@ pub fn starts_for(problem: &Problem) -> Result<Vec<f64>, Error> {
 
 /// As [`starts_for`], with (local fits tried, distinct minima found).
 pub fn starts_and_counts(problem: &Problem) -> Result<(Vec<f64>, (usize, usize)), Error> {
-    let (inf, outcome) = infer_and_search(problem, &SearchOptions::default())?;
+    starts_with_options(problem, &SearchOptions::default())
+}
+
+/// As [`starts_and_counts`], with the search's budget and seed from `opts`.
+pub fn starts_with_options(
+    problem: &Problem,
+    opts: &SearchOptions,
+) -> Result<(Vec<f64>, (usize, usize)), Error> {
+    let (inf, outcome) = infer_and_search(problem, opts)?;
     let counts = (outcome.candidates_tried, outcome.minima.len());
     let start = outcome
         .minima

@@ -52,6 +52,12 @@ pub struct SearchOptions {
     pub batch: usize,
     /// Iterations per leg for runs after the first batch.
     pub leg_iterations: usize,
+    /// Iteration budget of each run after the first batch (the exploratory
+    /// runs; the first batch, which holds the inferred starts, has the full
+    /// budget of `lm`). A run still moving after this many iterations is
+    /// reported as not converged instead of crawling on: such runs were nearly
+    /// all on their way to a parameter at infinity or along a flat valley.
+    pub explore_iterations: usize,
     /// Parameter sets whose joint change of sign leaves the model unchanged
     /// (see [`symmetry::find_sign_flips`]): mirror-image minima are merged.
     pub sign_flips: Vec<Vec<usize>>,
@@ -67,6 +73,7 @@ impl Default for SearchOptions {
             lm: LmOptions::default(),
             batch: 8,
             leg_iterations: 8,
+            explore_iterations: 400,
             sign_flips: Vec::new(),
         }
     }
@@ -141,6 +148,14 @@ pub fn search(
     };
 
     let batch = opts.batch.max(1);
+    let explore_lm = LmOptions {
+        max_iterations: opts.lm.max_iterations.min(opts.explore_iterations.max(1)),
+        max_evaluations: opts
+            .lm
+            .max_evaluations
+            .min(4 * opts.explore_iterations.max(1)),
+        ..opts.lm.clone()
+    };
     let mut basins = Basins::default();
     let mut done: Vec<(Refined, bool)> = Vec::new();
     let mut stopped_by_time = false;
@@ -170,7 +185,7 @@ pub fn search(
                     refine_in_legs(
                         problem,
                         &c.point,
-                        &opts.lm,
+                        &explore_lm,
                         opts.leg_iterations,
                         &known,
                         &scales,
