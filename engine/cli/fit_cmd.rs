@@ -43,7 +43,15 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
         );
     }
     let mut bound = bind_rows(model, &data)?;
+    let search_clock = Instant::now();
     let (start, searched) = starting_values_searched(&args.start, &bound.problem)?;
+    if let (true, Some((tried, minima))) = (verbose, searched) {
+        let _ = writeln!(
+            err,
+            "foothold: starting values inferred; search: {tried} starts tried, {minima} distinct minima, {:.1} ms",
+            search_clock.elapsed().as_secs_f64() * 1e3
+        );
+    }
     bound.context.search = searched;
     let problem = &bound.problem;
     let fit_clock = Instant::now();
@@ -51,8 +59,8 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
     if verbose {
         let _ = writeln!(
             err,
-            "foothold: stopped: {:?} after {} iterations, {} model evaluations, {:.1} ms (total {:.1} ms)",
-            result.stop,
+            "foothold: stopped: {} after {} iterations, {} model evaluations, {:.1} ms (total {:.1} ms)",
+            summary.stop_reason,
             result.iterations,
             result.evaluations,
             fit_clock.elapsed().as_secs_f64() * 1e3,

@@ -103,7 +103,9 @@ pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
         warnings,
         search: None,
     };
-    let problem = Problem::new(model, &used)?;
+    // Bound to the whole table (the problem drops the same incomplete rows
+    // itself) so that a row named in an error is the row of the data as given.
+    let problem = Problem::new(model, data)?;
     Ok(Bound { problem, context })
 }
 

@@ -99,7 +99,22 @@ pub fn run_rank(
             let _ = writeln!(err, "foothold: warning: {w}");
         }
     }
+    let search_clock = std::time::Instant::now();
     let (_, outcome) = infer_and_search(&bound.problem, &search_options(&args.search))?;
+    if verbose {
+        let _ = writeln!(
+            err,
+            "foothold: search: {} starts tried, {} distinct minima; stopped: {}; {:.1} ms",
+            outcome.candidates_tried,
+            outcome.minima.len(),
+            if outcome.stopped_by_time {
+                "time limit"
+            } else {
+                "every start tried"
+            },
+            search_clock.elapsed().as_secs_f64() * 1e3
+        );
+    }
     let names = &bound.problem.model.params;
     let list = ranked(names, &outcome, args.top.unwrap_or(5).max(1));
     let text = match args.output.format {

@@ -1,6 +1,7 @@
 //! Local fitting: the Levenberg–Marquardt fitter, the statistics of a fit,
 //! and the binding of a model to data as a least-squares problem.
 
+pub mod domain;
 pub mod lm;
 pub mod problem;
 pub mod stats;

@@ -1,6 +1,7 @@
 //! A model bound to a dataset as a least-squares problem: response (after the
 //! left-hand transform) minus the compiled right-hand side, with its Jacobian.
 
+use super::domain::domain_fault;
 use super::trust::enorm;
 use super::Residuals;
 use crate::data::Dataset;
@@ -20,12 +21,19 @@ pub enum ProblemError {
         params: usize,
         need: usize,
     },
-    #[error("the left-hand side {lhs} is not finite at row {row} ({response} = {value}); check the data or the transform")]
+    #[error("the left-hand side {lhs} is not finite at data row {row} (column '{response}' = {value}); check the data or the transform")]
     LhsNotFinite {
         lhs: String,
         row: usize,
         response: String,
         value: f64,
+    },
+    /// A data-only term with no value at a row, whatever the parameters.
+    #[error("{term} is undefined at data row {row} ({cells}) whatever the parameters are; remove that row or change the formula")]
+    TermUndefined {
+        term: String,
+        row: usize,
+        cells: String,
     },
     #[error("column '{0}' is missing from the data")]
     MissingColumn(String),
@@ -147,6 +155,18 @@ impl Problem {
                 rows: keep.len(),
                 params: np,
                 need: np + 1,
+            });
+        }
+        let cols: Vec<&[f64]> = x_used.iter().map(|c| c.as_slice()).collect();
+        if let Some(f) = domain_fault(&model.rhs, &cols, &keep) {
+            let cells: Vec<String> = (0..model.vars.len())
+                .filter(|&j| f.term.has_var(j))
+                .map(|j| format!("column '{}' = {}", model.vars[j], cols[j][f.row]))
+                .collect();
+            return Err(ProblemError::TermUndefined {
+                term: f.term.display(&model.params, &model.vars).to_string(),
+                row: f.row + 1,
+                cells: cells.join(", "),
             });
         }
         let xs: Vec<Vec<f64>> = x_used
@@ -316,6 +336,23 @@ mod tests {
             }
             other => panic!("unexpected {other:?}"),
         }
+        // log(x) at x = 0 has no value for any a, b: refused with the data row
+        // (rows with a missing cell count, so the number matches the table).
+        let m = model("a*log(x) + b", &["x", "y"]);
+        let e = Problem::from_columns(
+            m,
+            vec![vec![1.0, f64::NAN, 2.0, 0.0, 3.0, 4.0]],
+            vec![1.0, 2.0, 3.0, 4.0, 5.0, 6.0],
+        )
+        .unwrap_err();
+        assert_eq!(
+            e,
+            ProblemError::TermUndefined {
+                term: "log(x)".into(),
+                row: 4,
+                cells: "column 'x' = 0".into()
+            }
+        );
         let m = model("a + b*x", &["x", "y"]);
         let d = data(&["y"], vec![vec![1.0, 2.0, 3.0]]);
         assert_eq!(

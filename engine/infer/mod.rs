@@ -63,6 +63,13 @@ pub enum InferError {
     /// No strategy found parameters where the model is finite at every row.
     #[error("no starting values were found at which the model is finite on every row")]
     NothingFinite,
+    /// Every row has the same response: no shape to infer anything from.
+    #[error("the response '{response}' is constant ({value} in all {rows} rows), so the data have no curve to fit; give --start to fit it anyway")]
+    ConstantResponse {
+        response: String,
+        value: f64,
+        rows: usize,
+    },
 }
 
 /// One parameter's starting value and how it was obtained.
@@ -104,6 +111,16 @@ pub struct Inference {
     pub notes: Vec<String>,
 }
 
+/// The response as the fit sees it: `y`, or the left-hand side `log(y)`.
+fn response_text(model: &crate::symbolic::Model) -> String {
+    match &model.lhs {
+        Some(l) => l
+            .display(&[], std::slice::from_ref(&model.response))
+            .to_string(),
+        None => model.response.clone(),
+    }
+}
+
 /// Infers starting values for every parameter of `problem` from the model and the data.
 pub fn infer(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferError> {
     let n = problem.y.len();
@@ -111,6 +128,13 @@ pub fn infer(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferE
         return Err(InferError::NoRows);
     }
     let model = &problem.model;
+    if problem.y.iter().all(|&v| v == problem.y[0]) {
+        return Err(InferError::ConstantResponse {
+            response: response_text(model),
+            value: problem.y[0],
+            rows: n,
+        });
+    }
     let features = detect(&problem.x[0], &problem.y);
     let roles = roles(model);
     let sc = scales::param_scales(problem, &roles);
@@ -213,4 +237,32 @@ pub fn canonical_labelling(problem: &Problem, p: &mut [f64]) {
     let exchange = symmetry::exchangeable(&problem.model, &sc);
     let mut why = vec![String::new(); p.len()];
     symmetry::canonical(&exchange, &problem.model.params, p, &mut why);
+}
+
+#[cfg(test)]
+mod constant_response_tests {
+    use super::*;
+    use crate::symbolic::Model;
+
+    #[test]
+    fn a_constant_response_is_refused_with_its_value_and_row_count() {
+        let cols = vec!["x".to_string(), "y".to_string()];
+        let m = Model::new("a*exp(-k*x)", &cols, None).unwrap();
+        let pr = Problem::from_columns(m, vec![vec![1.0, 2.0, 3.0, 4.0]], vec![5.0; 4]).unwrap();
+        let e = infer(&pr, &InferOptions::default()).unwrap_err();
+        assert_eq!(
+            e,
+            InferError::ConstantResponse {
+                response: "y".into(),
+                value: 5.0,
+                rows: 4
+            }
+        );
+        assert!(e.to_string().contains("give --start"), "{e}");
+        // One differing row is enough to try.
+        let m = Model::new("a*exp(-k*x)", &cols, None).unwrap();
+        let pr = Problem::from_columns(m, vec![vec![1.0, 2.0, 3.0, 4.0]], vec![5.0, 5.0, 5.0, 4.0])
+            .unwrap();
+        assert!(infer(&pr, &InferOptions::default()).is_ok());
+    }
 }

@@ -21,7 +21,7 @@ pub const MAX_DEPTH: usize = 500;
 
 /// A formula that could not be read, with the character where reading stopped.
 #[derive(Debug, Clone, PartialEq, Error)]
-#[error("{message} at character {} of the formula\n  {formula}\n  {caret}^", position + 1, caret = " ".repeat(*position))]
+#[error("{message} at character {} of the formula\n{}", position + 1, caret_block(formula, *position))]
 pub struct ParseError {
     /// What was wrong and what was expected.
     pub message: String,
@@ -29,6 +29,36 @@ pub struct ParseError {
     pub position: usize,
     /// The formula as given (a long one is shortened around the position).
     pub formula: String,
+}
+
+/// Characters of a long formula shown on each side of the error position.
+const SHOWN_AROUND: usize = 30;
+
+/// The formula line and the caret line under it, each indented by two spaces:
+/// line breaks and tabs shown as spaces (so the block stays two lines), and a
+/// long formula cut to the part around `position`, marked with `...`.
+fn caret_block(formula: &str, position: usize) -> String {
+    let chars: Vec<char> = formula
+        .chars()
+        .map(|c| if c.is_control() { ' ' } else { c })
+        .collect();
+    let (start, end) = if chars.len() > 2 * SHOWN_AROUND + 20 {
+        let start = position.saturating_sub(SHOWN_AROUND).min(chars.len());
+        (start, (position + SHOWN_AROUND).min(chars.len()))
+    } else {
+        (0, chars.len())
+    };
+    let mut line: String = if start > 0 {
+        "...".into()
+    } else {
+        String::new()
+    };
+    let caret = position - start + line.len();
+    line.extend(&chars[start..end]);
+    if end < chars.len() {
+        line.push_str("...");
+    }
+    format!("  {line}\n  {}^", " ".repeat(caret))
 }
 
 /// The result of parsing: trees whose `Param(i)` nodes refer to `names[i]`;
@@ -464,5 +494,41 @@ mod tests {
         assert_eq!(p("1e-400*a").rhs.eval(&[1.0], &[]), 0.0);
         let huge = "x".repeat(MAX_FORMULA_CHARS + 1);
         assert!(parse_formula(&huge).unwrap_err().message.contains("limit"));
+    }
+
+    #[test]
+    fn ten_million_characters_are_refused_by_length_before_parsing() {
+        let text = "a*x+".repeat(2_500_000);
+        let e = parse_formula(&text).unwrap_err();
+        assert_eq!(
+            e.message,
+            "formula is 10000000 characters long; the limit is 20000"
+        );
+        // 10^5 levels of nesting need more characters than the limit allows.
+        let deep = "(".repeat(100_000) + "x" + &")".repeat(100_000);
+        assert!(parse_formula(&deep)
+            .unwrap_err()
+            .message
+            .contains("200001 characters"));
+    }
+
+    #[test]
+    fn the_caret_block_is_two_lines_around_the_error() {
+        // A line break in the formula is shown as a space.
+        let shown = parse_formula("a*exp(\n-k*x").unwrap_err().to_string();
+        assert_eq!(shown.lines().count(), 3, "{shown}");
+        assert!(shown.ends_with("  a*exp( -k*x\n       ^"), "{shown}");
+        // A long formula is cut around the error; the caret stays under it.
+        let deep = "(".repeat(9_000) + "x" + &")".repeat(9_000);
+        let e = parse_formula(&deep).unwrap_err();
+        let shown = e.to_string();
+        let lines: Vec<&str> = shown.lines().collect();
+        assert_eq!(lines.len(), 3, "{shown}");
+        assert!(lines[1].len() < 80, "{shown}");
+        assert!(
+            lines[1].starts_with("  ...(((") && lines[1].ends_with("..."),
+            "{shown}"
+        );
+        assert_eq!(lines[2].find('^'), Some(2 + 3 + SHOWN_AROUND), "{shown}");
     }
 }
