@@ -128,3 +128,40 @@ fn rows_with_empty_cells_are_skipped_with_a_warning() {
     assert_eq!(code, 0);
     assert!(!err.contains("warning"), "{err}");
 }
+
+#[test]
+fn search_budget_and_seed_of_a_fit_without_starts() {
+    // Invented cooling data (demo-data/part_cooling.csv, generated with
+    // ambient 22.5, delta 157.5, k 0.085): the search's budget and seed are the user's.
+    let args = |starts: &str, seed: &str| {
+        run(&[
+            "fit",
+            "demo-data/part_cooling.csv",
+            "--model",
+            "temp = ambient + delta*exp(-k*minutes)",
+            "--starts",
+            starts,
+            "--seed",
+            seed,
+            "--format",
+            "json",
+        ])
+    };
+    let (code, out, err) = args("8", "3");
+    assert_eq!(code, 0, "{err}");
+    let json: serde_json::Value = serde_json::from_str(&out).unwrap();
+    println!(
+        "candidates_tried {} minima_found {} k {}",
+        json["candidates_tried"],
+        json["minima_found"],
+        estimate(&json, "k")
+    );
+    assert_eq!(json["candidates_tried"].as_u64(), Some(8), "{out}");
+    assert!((estimate(&json, "k") - 0.085).abs() < 0.005, "{out}");
+    // Same seed, same bytes; another budget is honoured too.
+    assert_eq!(args("8", "3").1, out);
+    let (_, more, _) = args("24", "3");
+    let more: serde_json::Value = serde_json::from_str(&more).unwrap();
+    assert_eq!(more["candidates_tried"].as_u64(), Some(24));
+    assert!((estimate(&more, "k") - estimate(&json, "k")).abs() < 1e-9);
+}

@@ -78,18 +78,25 @@ pub enum Format {
     Csv,
 }
 
+/// The budget and seed of the multistart search, shared by every command that runs it.
+#[derive(Debug, Clone, Default, Args)]
+pub struct SearchBudget {
+    /// Number of candidate starts to refine [default: 64].
+    #[arg(long, value_name = "N")]
+    pub starts: Option<usize>,
+    /// Seed of the quasi-random draws: the same seed gives the same result.
+    #[arg(long, value_name = "N")]
+    pub seed: Option<u64>,
+    /// Stop the search after this many seconds (results then depend on speed).
+    #[arg(long, value_name = "SECONDS")]
+    pub time_limit: Option<f64>,
+}
+
 /// Options of the multistart search, shared by `rank` and `report`.
 #[derive(Debug, Clone, Args)]
 pub struct SearchArgs {
-    /// Number of candidate starts to refine.
-    #[arg(long, value_name = "N")]
-    pub starts: Option<usize>,
-    /// Seed of the random draws, for repeatable runs.
-    #[arg(long, value_name = "N")]
-    pub seed: Option<u64>,
-    /// Stop the search after this many seconds.
-    #[arg(long, value_name = "SECONDS")]
-    pub time_limit: Option<f64>,
+    #[command(flatten)]
+    pub budget: SearchBudget,
     /// Fit each group of rows sharing a value of this column separately.
     #[arg(long, value_name = "COLUMN")]
     pub by: Option<String>,
@@ -103,6 +110,9 @@ pub struct FitArgs {
     /// Starting values, NAME=VALUE, comma-separated or repeated; every parameter needs one.
     #[arg(long, value_name = "NAME=VALUE,...", value_delimiter = ',')]
     pub start: Vec<String>,
+    /// The search that finds starts when none are given.
+    #[command(flatten)]
+    pub search: SearchBudget,
     /// Fit each group of rows sharing a value of this (numeric) column separately;
     /// one summary row per group.
     #[arg(long, value_name = "COLUMN")]

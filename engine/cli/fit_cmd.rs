@@ -44,7 +44,11 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
     }
     let mut bound = bind_rows(model, &data)?;
     let search_clock = Instant::now();
-    let (start, searched) = starting_values_searched(&args.start, &bound.problem)?;
+    let (start, searched) = starting_values_searched(
+        &args.start,
+        &bound.problem,
+        &super::rank_cmd::search_options(&args.search),
+    )?;
     if let (true, Some((tried, minima))) = (verbose, searched) {
         let _ = writeln!(
             err,

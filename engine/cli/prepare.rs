@@ -117,14 +117,16 @@ pub fn starting_values(items: &[String], problem: &Problem) -> Result<Vec<f64>, 
     parse_starts(items, &problem.model.params).map_err(|e| Error::Usage(e.to_string()))
 }
 
-/// As [`starting_values`], also saying how the search went when it ran:
-/// (local fits tried, distinct minima found).
+/// As [`starting_values`] with the search's budget and seed from `opts`,
+/// also saying how the search went when it ran: (local fits tried, distinct
+/// minima found).
 pub fn starting_values_searched(
     items: &[String],
     problem: &Problem,
+    opts: &crate::search::SearchOptions,
 ) -> Result<(Vec<f64>, Option<(usize, usize)>), Error> {
     if items.iter().all(|s| s.trim().is_empty()) {
-        let (start, counts) = crate::cli::auto_start::starts_and_counts(problem)?;
+        let (start, counts) = crate::cli::auto_start::starts_with_options(problem, opts)?;
         return Ok((start, Some(counts)));
     }
     Ok((starting_values(items, problem)?, None))

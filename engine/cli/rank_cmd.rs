@@ -36,7 +36,7 @@ fn finite(v: f64) -> Option<f64> {
 }
 
 /// The search options a command line asks for (defaults otherwise).
-pub fn search_options(args: &super::args::SearchArgs) -> SearchOptions {
+pub fn search_options(args: &super::args::SearchBudget) -> SearchOptions {
     let mut o = SearchOptions::default();
     if let Some(n) = args.starts {
         o.starts = n.max(1);
@@ -100,7 +100,7 @@ pub fn run_rank(
         }
     }
     let search_clock = std::time::Instant::now();
-    let (_, outcome) = infer_and_search(&bound.problem, &search_options(&args.search))?;
+    let (_, outcome) = infer_and_search(&bound.problem, &search_options(&args.search.budget))?;
     if verbose {
         let _ = writeln!(
             err,
