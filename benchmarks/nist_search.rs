@@ -18,7 +18,7 @@
 #[path = "../tests/common/strd.rs"]
 mod strd;
 
-use foothold::cli::auto_start::starts_with_options;
+use foothold::auto_start::starts_with_options;
 use foothold::fit::lm::{levenberg_marquardt, LmOptions};
 use foothold::fit::problem::Problem;
 use foothold::search::symmetry::{apply, group};

@@ -13,7 +13,7 @@
 //! assert!((fit.parameters[1].estimate - 0.5).abs() < 1e-6); // k (parameters in natural order: a, k)
 //! ```
 
-use crate::cli::auto_start::starts_for;
+use crate::auto_start::starts_for;
 use crate::cli::prepare::{bind_rows, run_fit};
 use crate::data::Dataset;
 use crate::error::Error;

@@ -8,11 +8,13 @@
 //! - [`infer`]: limits + features → starting values with their derivations.
 //! - [`fit`]: the Levenberg–Marquardt fitter and the statistics of a fit.
 //! - [`search`]: multistart global search, clustering and ranking of minima.
+//! - [`auto_start`]: starting values when none are given: inference, then the search.
 //! - [`report`]: tables, JSON, plots and the HTML report.
 //! - [`library`]: the named models of the trade (`rules/models.yaml`).
 //! - [`api`]: the small library surface (`fit`, `infer`, `rank` on in-memory columns).
 
 pub mod api;
+pub mod auto_start;
 pub mod cli;
 pub mod data;
 pub mod error;

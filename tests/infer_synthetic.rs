@@ -9,7 +9,7 @@
 mod common;
 
 use common::synthetic::{draw_case, forms, Case, Rng};
-use foothold::cli::auto_start::starts_and_counts;
+use foothold::auto_start::starts_and_counts;
 use foothold::fit::lm::{levenberg_marquardt, LmOptions};
 use foothold::fit::problem::Problem;
 use foothold::infer::{infer, InferOptions};
@@ -128,7 +128,7 @@ fn synthetic_suite_through_inference_and_search() {
                     let good = fit.ssr <= from_truth.ssr * (1.0 + 1e-6) + 1e-14 * y2;
                     if !good && std::env::var("FOOTHOLD_DEBUG").is_ok() {
                         let (inf, out) =
-                            foothold::cli::auto_start::infer_and_search(&pr, &Default::default())
+                            foothold::auto_start::infer_and_search(&pr, &Default::default())
                                 .unwrap();
                         println!("  inferred {:?} scales {:?}", inf.start, inf.scales);
                         for m in &out.minima {

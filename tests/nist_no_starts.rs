@@ -7,7 +7,7 @@
 mod common;
 
 use common::strd;
-use foothold::cli::auto_start::starts_with_options;
+use foothold::auto_start::starts_with_options;
 use foothold::fit::lm::{levenberg_marquardt, LmOptions};
 use foothold::fit::problem::Problem;
 use foothold::search::SearchOptions;

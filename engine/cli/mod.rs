@@ -4,7 +4,6 @@
 //! Exit codes: 0 success; 1 the fit did not converge; 2 bad input or usage.
 
 pub mod args;
-pub mod auto_start;
 pub mod batch;
 pub mod fit_cmd;
 pub mod infer_cmd;

@@ -3,9 +3,9 @@
 //! starting values, and run Levenberg–Marquardt.
 
 use super::args::InputArgs;
-use super::auto_start::starts_for;
 use super::model_arg::{bind_model, resolve_model, ModelSpec};
 use super::starts::parse_starts;
+use crate::auto_start::starts_for;
 use crate::data::{read_table, Dataset, ReadOptions};
 use crate::error::Error;
 use crate::fit::lm::{levenberg_marquardt, LmOptions, LmResult};
@@ -126,7 +126,7 @@ pub fn starting_values_searched(
     opts: &crate::search::SearchOptions,
 ) -> Result<(Vec<f64>, Option<(usize, usize)>), Error> {
     if items.iter().all(|s| s.trim().is_empty()) {
-        let (start, counts) = crate::cli::auto_start::starts_with_options(problem, opts)?;
+        let (start, counts) = crate::auto_start::starts_with_options(problem, opts)?;
         return Ok((start, Some(counts)));
     }
     Ok((starting_values(items, problem)?, None))

@@ -3,9 +3,9 @@
 //! chosen start can be plugged into any other fitter.
 
 use super::args::{Format, RankArgs};
-use super::auto_start::infer_and_search;
 use super::prepare::{bind_rows, model_for, read_input};
 use super::Outcome;
+use crate::auto_start::infer_and_search;
 use crate::error::Error;
 use crate::report::fit_table::format_number;
 use crate::search::{SearchOptions, SearchOutcome};
