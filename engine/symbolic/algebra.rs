@@ -106,7 +106,8 @@ pub fn pow(a: Expr, b: Expr) -> Expr {
     }
 }
 
-/// `f(a)`, folding numbers and `log(exp(u))`, `exp(log(u))`.
+/// `f(a)`, folding numbers and `log(exp(u))` (exact for every real u);
+/// `exp(log(u))` is kept, since it is undefined for u ≤ 0 where `u` is not.
 pub fn call(f: Func, a: Expr) -> Expr {
     if let Expr::Num(x) = a {
         let v = f.apply(x);
@@ -116,7 +117,6 @@ pub fn call(f: Func, a: Expr) -> Expr {
     }
     match (f, &a) {
         (Func::Log, Expr::Call(Func::Exp, u)) => (**u).clone(),
-        (Func::Exp, Expr::Call(Func::Log, u)) => (**u).clone(),
         _ => Expr::call(f, a),
     }
 }
@@ -357,6 +357,14 @@ pub fn ser_exprs<S: Serializer>(es: &[Expr], s: S) -> Result<S::Ok, S::Error> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn exp_of_log_is_not_folded_but_log_of_exp_is() {
+        let x = Expr::Var(0);
+        let kept = call(Func::Exp, call(Func::Log, x.clone()));
+        assert_ne!(kept, x, "exp(log(x)) is undefined for x <= 0");
+        assert_eq!(call(Func::Log, call(Func::Exp, x.clone())), x);
+    }
     use crate::symbolic::parse::parse_formula;
 
     fn p(s: &str) -> Expr {
