@@ -242,6 +242,7 @@ mod tests {
             values,
             source: "test".into(),
             skipped_rows: 0,
+            text: Vec::new(),
         }
     }
 
