@@ -9,6 +9,7 @@ use super::prepare::{bind_rows, model_for, run_fit, starting_values};
 use super::Outcome;
 use crate::data::Dataset;
 use crate::error::Error;
+use crate::fit::problem::Problem;
 use crate::report::fit_table::{format_number, SIGNIFICANT};
 use crate::report::formats::{aligned_table, csv_line, csv_number, to_json, to_yaml, Align};
 use crate::symbolic::Model;
@@ -144,8 +145,20 @@ pub fn subset(data: &Dataset, rows: &[usize], label: &str) -> Dataset {
     }
 }
 
+/// One group's fit: the summary row, and the bound problem and estimates
+/// (for plots) when the group got that far.
+#[derive(Debug, Clone)]
+pub struct GroupFit {
+    /// The summary row.
+    pub row: GroupRow,
+    /// The group's rows bound to the model; `None` when binding failed.
+    pub problem: Option<Problem>,
+    /// The estimates; empty when the group was not fitted.
+    pub estimates: Vec<f64>,
+}
+
 /// Fits one group; every error becomes a failed row.
-fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> GroupRow {
+fn fit_group(start: &[String], model: &Model, data: &Dataset, key: String) -> GroupFit {
     let names = &model.params;
     let failed = |message: String| GroupRow {
         group: key.clone(),
@@ -165,13 +178,25 @@ fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> Grou
     };
     let bound = match bind_rows(model.clone(), data) {
         Ok(b) => b,
-        Err(e) => return failed(e.to_string()),
+        Err(e) => {
+            return GroupFit {
+                row: failed(e.to_string()),
+                problem: None,
+                estimates: Vec::new(),
+            }
+        }
     };
-    let start = match starting_values(&args.start, &bound.problem) {
+    let start = match starting_values(start, &bound.problem) {
         Ok(s) => s,
-        Err(e) => return failed(e.to_string()),
+        Err(e) => {
+            return GroupFit {
+                row: failed(e.to_string()),
+                problem: Some(bound.problem),
+                estimates: Vec::new(),
+            }
+        }
     };
-    let (_, s) = run_fit(&bound.problem, &start);
+    let (result, s) = run_fit(&bound.problem, &start);
     let status = if s.converged {
         GroupStatus::Converged
     } else {
@@ -185,7 +210,7 @@ fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> Grou
         );
     }
     notes.extend(s.warnings.iter().cloned());
-    GroupRow {
+    let row = GroupRow {
         group: key,
         status,
         n_obs: s.n_obs,
@@ -201,7 +226,48 @@ fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> Grou
             })
             .collect(),
         message: notes.join("; "),
+    };
+    GroupFit {
+        row,
+        problem: Some(bound.problem),
+        estimates: result.params,
     }
+}
+
+/// Fits every group in parallel (rayon), in the order given, with a progress
+/// bar on a terminal unless `quiet`.
+pub fn fit_groups(
+    start: &[String],
+    model: &Model,
+    data: &Dataset,
+    groups: &[(String, Vec<usize>)],
+    by: &str,
+    quiet: bool,
+) -> Vec<GroupFit> {
+    let show = !quiet && std::io::stderr().is_terminal();
+    let bar = if show {
+        let b =
+            ProgressBar::with_draw_target(Some(groups.len() as u64), ProgressDrawTarget::stderr());
+        if let Ok(style) =
+            ProgressStyle::with_template("fitting {bar:30} {pos}/{len} groups ({elapsed})")
+        {
+            b.set_style(style);
+        }
+        b
+    } else {
+        ProgressBar::hidden()
+    };
+    let fits: Vec<GroupFit> = groups
+        .par_iter()
+        .map(|(key, idx)| {
+            let label = format!("{} [{by} = {key}]", data.source);
+            let fit = fit_group(start, model, &subset(data, idx, &label), key.clone());
+            bar.inc(1);
+            fit
+        })
+        .collect();
+    bar.finish_and_clear();
+    fits
 }
 
 /// Checks the `--by` column and the model against the data and splits the
@@ -251,30 +317,11 @@ pub fn run_batch(
 ) -> Result<Outcome, Error> {
     let by = args.by.clone().unwrap_or_default();
     let (model, groups, warnings) = batch_groups(&args.input, data, &by)?;
-    let show = !args.output.quiet && std::io::stderr().is_terminal();
-    let bar = if show {
-        let b =
-            ProgressBar::with_draw_target(Some(groups.len() as u64), ProgressDrawTarget::stderr());
-        if let Ok(style) =
-            ProgressStyle::with_template("fitting {bar:30} {pos}/{len} groups ({elapsed})")
-        {
-            b.set_style(style);
-        }
-        b
-    } else {
-        ProgressBar::hidden()
-    };
-    let rows: Vec<GroupRow> = groups
-        .par_iter()
-        .map(|(key, idx)| {
-            let key = key.clone();
-            let label = format!("{} [{by} = {key}]", data.source);
-            let row = fit_group(args, &model, &subset(data, idx, &label), key);
-            bar.inc(1);
-            row
-        })
-        .collect();
-    bar.finish_and_clear();
+    let rows: Vec<GroupRow> =
+        fit_groups(&args.start, &model, data, &groups, &by, args.output.quiet)
+            .into_iter()
+            .map(|f| f.row)
+            .collect();
     if !args.output.quiet {
         for w in &warnings {
             let _ = writeln!(err, "foothold: warning: {w}");
