@@ -103,7 +103,7 @@ pub struct FitArgs {
     /// Starting values, NAME=VALUE, comma-separated or repeated; every parameter needs one.
     #[arg(long, value_name = "NAME=VALUE,...", value_delimiter = ',')]
     pub start: Vec<String>,
-    /// Fit each group of rows sharing a value of this (numeric) column separately;
+    /// Fit each group of rows sharing a value of this column (text labels or numbers) separately;
     /// one summary row per group.
     #[arg(long, value_name = "COLUMN")]
     pub by: Option<String>,

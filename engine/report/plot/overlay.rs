@@ -47,7 +47,7 @@ const GROUP_COLOURS: [RGBColor; 7] = [
 ];
 
 /// Legend entries listed before the rest are summarised as "… and N more".
-pub const MAX_LEGEND: usize = 24;
+pub const MAX_LEGEND: usize = 22;
 /// Pixel size of the overlay sheet (chart and legend column).
 pub const OVERLAY_SIZE: (u32, u32) = (1200, 640);
 /// Width of the legend column.
@@ -94,7 +94,7 @@ pub(crate) fn draw_overlay<DB: DrawingBackend>(
     let xs = padded(xe.0, xe.1);
     let ys = padded(ylo, yhi);
     let mut chart = ChartBuilder::on(&left)
-        .caption(&o.title, font(style::TITLE_PX + 1, &style::INK))
+        .caption(&o.title, font(style::TITLE_PX + 3, &style::INK))
         .margin(10)
         .margin_right(16)
         .x_label_area_size(50)
@@ -113,8 +113,8 @@ pub(crate) fn draw_overlay<DB: DrawingBackend>(
         .light_line_style(style::GRID.mix(0.5))
         .bold_line_style(style::GRID)
         .axis_style(style::MUTED)
-        .axis_desc_style(font(style::AXIS_PX, &style::INK))
-        .label_style(font(style::LABEL_PX, &style::INK))
+        .axis_desc_style(font(style::AXIS_PX + 2, &style::INK))
+        .label_style(font(style::LABEL_PX + 2, &style::INK))
         .draw()
         .map_err(err)?;
     for (i, g) in o.groups.iter().enumerate() {
@@ -154,12 +154,12 @@ fn draw_legend<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     o: &Overlay,
 ) -> Result<(), String> {
-    let row = 22i32;
-    let top = 48i32;
-    let text = font(style::LABEL_PX, &style::INK).pos(Pos::new(HPos::Left, VPos::Center));
+    let row = 24i32;
+    let top = 56i32;
+    let text = font(style::LABEL_PX + 2, &style::INK).pos(Pos::new(HPos::Left, VPos::Center));
     area.draw_text(
         "groups",
-        &font(style::AXIS_PX, &style::INK).pos(Pos::new(HPos::Left, VPos::Center)),
+        &font(style::AXIS_PX + 2, &style::INK).pos(Pos::new(HPos::Left, VPos::Center)),
         (10, top - row),
     )
     .map_err(err)?;
@@ -180,8 +180,8 @@ fn draw_legend<DB: DrawingBackend>(
         }
         .map_err(err)?;
         let mut label = g.label.clone();
-        if label.chars().count() > 22 {
-            label = label.chars().take(21).collect::<String>() + "…";
+        if label.chars().count() > 18 {
+            label = label.chars().take(17).collect::<String>() + "…";
         }
         if !g.note.is_empty() {
             label += &format!(" ({})", g.note);
@@ -192,7 +192,7 @@ fn draw_legend<DB: DrawingBackend>(
         let y = top + row * shown as i32;
         area.draw_text(
             &format!("… and {} more", o.groups.len() - shown),
-            &font(style::LABEL_PX, &style::MUTED).pos(Pos::new(HPos::Left, VPos::Center)),
+            &font(style::LABEL_PX + 2, &style::MUTED).pos(Pos::new(HPos::Left, VPos::Center)),
             (10, y),
         )
         .map_err(err)?;
