@@ -97,10 +97,13 @@ pub fn groups_of(column: &[f64]) -> (Vec<(f64, Vec<usize>)>, usize) {
     (groups, missing)
 }
 
+/// One group: its label and the indices of its rows.
+pub type Group = (String, Vec<usize>);
+
 /// The groups of the `--by` column `by`: labels in order of first appearance
 /// with their row indices, and the count of rows with an empty group cell.
 /// Text columns group by their text; numeric columns by value, printed as numbers.
-pub fn group_rows(data: &Dataset, by: &str) -> Option<(Vec<(String, Vec<usize>)>, usize)> {
+pub fn group_rows(data: &Dataset, by: &str) -> Option<(Vec<Group>, usize)> {
     if let Some(t) = data.text_column(by) {
         let mut groups: Vec<(String, Vec<usize>)> =
             t.labels.iter().map(|l| (l.clone(), Vec::new())).collect();
@@ -240,7 +243,7 @@ pub fn fit_groups(
     start: &[String],
     model: &Model,
     data: &Dataset,
-    groups: &[(String, Vec<usize>)],
+    groups: &[Group],
     by: &str,
     quiet: bool,
 ) -> Vec<GroupFit> {
@@ -276,7 +279,7 @@ pub fn batch_groups(
     input: &InputArgs,
     data: &Dataset,
     by: &str,
-) -> Result<(Model, Vec<(String, Vec<usize>)>, Vec<String>), Error> {
+) -> Result<(Model, Vec<Group>, Vec<String>), Error> {
     if !data.has_column(by) {
         return Err(Error::Usage(format!(
             "--by names column '{by}', which is not in {} (columns: {})",
