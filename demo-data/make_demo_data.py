@@ -62,4 +62,29 @@ for name, (e0, a, m) in specs.items():
 write("creep_specimens.csv", ["specimen", "hours", "strain"],
       rows,
       ["Invented: tensile creep of three polymer specimens (1, 2, 3) at constant load;",
-       "strain in percent. Fit one specimen at a time (grouped fits are planned)."])
+       "strain in percent. One curve per specimen: fit with --by specimen."])
+
+# 5. Plate-reader inhibition by six invented compounds (text labels), 11 doses
+# in duplicate wells, normalised so that no inhibition reads 0:
+# response = top/(1 + exp(-slope*(log_dose - mid))), log_dose = log10 of the
+# dose in uM. Values (top, mid, slope) per compound.
+compounds = {
+    "KX-101": (94.0, -0.40, 2.6),
+    "KX-102": (88.0, 0.35, 1.9),
+    "KX-117": (97.0, -1.30, 3.2),
+    "LT-4a": (78.0, 0.80, 2.2),
+    "LT-4b": (91.0, -0.05, 1.5),
+    "ref std": (96.0, -0.75, 2.4),
+}
+rows = []
+for name, (top, mid, slope) in compounds.items():
+    for i in range(11):
+        ld = -3.0 + 0.5 * i
+        for _ in range(2):
+            mu = top / (1 + math.exp(-slope * (ld - mid)))
+            y = mu + rng.gauss(0, 2.5)
+            rows.append([name, f"{ld:g}", f"{y:.1f}"])
+write("plate_dose_response.csv", ["compound", "log_dose", "response"], rows,
+      ["Invented: enzyme inhibition (% of the uninhibited signal lost) read on a plate reader",
+       "for six compounds at 11 doses in duplicate wells; log_dose = log10(dose in uM).",
+       "One curve per compound: fit with --by compound."])

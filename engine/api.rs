@@ -43,6 +43,7 @@ fn dataset(columns: &[(&str, &[f64])]) -> Result<Dataset, Error> {
         values: columns.iter().map(|(_, c)| c.to_vec()).collect(),
         source: "in-memory columns".into(),
         skipped_rows: 0,
+        text: Vec::new(),
     })
 }
 

@@ -199,3 +199,147 @@ fn bad_group_options_exit_two() {
     }
     let _ = std::fs::remove_dir_all(&d);
 }
+
+#[test]
+fn text_labels_and_no_starts_fit_every_compound() {
+    // demo-data/plate_dose_response.csv: six compounds with text labels,
+    // generated with (asym, xmid, r) per compound (demo-data/README.md);
+    // no --start: inference and the multistart search give every group its starts.
+    let (code, out, err) = run(&[
+        "fit",
+        "demo-data/plate_dose_response.csv",
+        "--model",
+        "logistic-3",
+        "--x",
+        "log_dose",
+        "--y",
+        "response",
+        "--by",
+        "compound",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let groups = v["groups"].as_array().unwrap();
+    let want = [
+        ("KX-101", 94.0, -0.40, 2.6),
+        ("KX-102", 88.0, 0.35, 1.9),
+        ("KX-117", 97.0, -1.30, 3.2),
+        ("LT-4a", 78.0, 0.80, 2.2),
+        ("LT-4b", 91.0, -0.05, 1.5),
+        ("ref std", 96.0, -0.75, 2.4),
+    ];
+    assert_eq!(groups.len(), want.len());
+    for (g, (name, asym, xmid, r)) in groups.iter().zip(want) {
+        assert_eq!(g["group"], name, "order of first appearance");
+        assert_eq!(g["status"], "converged", "{g}");
+        assert_eq!(g["n_obs"], 22);
+        let p = g["parameters"].as_array().unwrap();
+        let est = |k: usize| p[k]["estimate"].as_f64().unwrap();
+        let se = |k: usize| p[k]["std_error"].as_f64().unwrap();
+        // Parameters in natural order: asym, r, xmid. Noise sd 2.5: each
+        // estimate within 4 standard errors of its generating value.
+        println!(
+            "{name}: asym {:.3} ± {:.3}, r {:.3} ± {:.3}, xmid {:.4} ± {:.4}",
+            est(0),
+            se(0),
+            est(1),
+            se(1),
+            est(2),
+            se(2)
+        );
+        assert!(
+            (est(0) - asym).abs() < 4.0 * se(0),
+            "{name} asym {}",
+            est(0)
+        );
+        assert!((est(1) - r).abs() < 4.0 * se(1), "{name} r {}", est(1));
+        assert!(
+            (est(2) - xmid).abs() < 4.0 * se(2),
+            "{name} xmid {}",
+            est(2)
+        );
+    }
+    // The table prints the text labels in the group column.
+    let (code, table, _) = run(&[
+        "fit",
+        "demo-data/plate_dose_response.csv",
+        "--model",
+        "logistic-3",
+        "--x",
+        "log_dose",
+        "--y",
+        "response",
+        "--by",
+        "compound",
+    ]);
+    assert_eq!(code, 0);
+    assert!(table.contains("compound  status"), "{table}");
+    assert!(
+        table
+            .lines()
+            .any(|l| l.starts_with("ref std") && l.contains("converged")),
+        "{table}"
+    );
+}
+
+#[test]
+fn text_labels_with_empty_cells_and_a_text_cell_in_a_used_column() {
+    let d = scratch("labels");
+    // Invented: y = a*exp(-k*x) per well; one row has no well, and a note column holds text.
+    let mut text = String::from("well,x,y,note\n");
+    for (w, a, k) in [("B12", 10.0, 0.3), ("A1", 4.0, 0.8), ("spec 2", 6.0, 0.5)] {
+        for i in 0..8 {
+            let x = i as f64 * 0.5;
+            text += &format!("{w},{x},{:.12},ok\n", a * (-k * x).exp());
+        }
+    }
+    text += ",1,2,no well\n";
+    let p = d.join("wells.csv");
+    std::fs::write(&p, &text).unwrap();
+    let (code, out, err) = run(&[
+        "fit",
+        p.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--by",
+        "well",
+        "--format",
+        "csv",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        err.contains("skipped 1 row with an empty 'well' cell"),
+        "{err}"
+    );
+    let lines: Vec<&str> = out.lines().collect();
+    assert_eq!(lines.len(), 4, "{out}");
+    for (line, (w, a, k)) in
+        lines[1..]
+            .iter()
+            .zip([("B12", 10.0, 0.3), ("A1", 4.0, 0.8), ("spec 2", 6.0, 0.5)])
+    {
+        let c: Vec<&str> = line.split(',').collect();
+        assert_eq!(c[0], w);
+        let (fa, fk): (f64, f64) = (c[5].parse().unwrap(), c[7].parse().unwrap());
+        assert!((fa - a).abs() < 1e-6 && (fk - k).abs() < 1e-6, "{line}");
+    }
+    // A text cell in a column the model uses is refused as before, naming it.
+    std::fs::write(&p, text.replace("A1,1,", "A1,abc,")).unwrap();
+    let (code, out, err) = run(&[
+        "fit",
+        p.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--by",
+        "well",
+    ]);
+    assert_eq!(code, 2, "{err}");
+    assert!(out.is_empty());
+    assert!(
+        err.contains("line 12, column 'x': 'abc' is not a number"),
+        "{err}"
+    );
+    let _ = std::fs::remove_dir_all(&d);
+}

@@ -83,6 +83,120 @@ fn report_holds_estimates_plots_and_caution() {
     let _ = std::fs::remove_dir_all(&d);
 }
 
+/// Writes the batch page of the plate demo (no starts) into `dir`.
+fn plate_batch_report(dir: &Path) -> PathBuf {
+    let html = dir.join("batch.html");
+    let (code, out, err) = run(&[
+        "report",
+        "demo-data/plate_dose_response.csv",
+        "--model",
+        "logistic-3",
+        "--x",
+        "log_dose",
+        "--y",
+        "response",
+        "--by",
+        "compound",
+        "--out",
+        html.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.is_empty(), "the page went to the file");
+    html
+}
+
+#[test]
+fn batch_report_holds_the_table_the_overlay_and_the_caution() {
+    let d = scratch("batch");
+    let html_path = plate_batch_report(&d);
+    assert_eq!(file_names(&d), vec!["batch.html"], "no temporary files");
+    let html = std::fs::read_to_string(&html_path).unwrap();
+    assert!(html.starts_with("<!DOCTYPE html>"));
+    assert!(!html.contains("<script") && !html.contains("http://") && !html.contains("https://"));
+    assert_eq!(
+        html.matches("<svg").count(),
+        2,
+        "overlay and per-group grid"
+    );
+    assert!(html.contains("<h2>Groups</h2>") && html.contains("<h2>All groups</h2>"));
+    assert!(html.contains("safety-critical"), "caution present");
+    // Every compound has a row and appears in the overlay's legend.
+    for name in ["KX-101", "KX-102", "KX-117", "LT-4a", "LT-4b", "ref std"] {
+        assert!(
+            html.contains(&format!(
+                "<td>{name}</td><td>converged</td><td class=\"num\">22</td>"
+            )),
+            "row of {name}"
+        );
+        assert!(
+            html.contains(&format!("\n{name}\n</text>")),
+            "legend entry {name}"
+        );
+    }
+    // Demo data generated with KX-117 asym = 97, r = 3.2, xmid = -1.30
+    // (demo-data/README.md); the row shows estimates ± standard errors near them.
+    let row = html
+        .lines()
+        .find(|l| l.contains("<td>KX-117</td>"))
+        .unwrap();
+    let cells: Vec<f64> = row
+        .split("<td class=\"num\">")
+        .skip(2)
+        .take(3)
+        .map(|c| c.split(" ± ").next().unwrap().parse().unwrap())
+        .collect();
+    println!("KX-117 asym, r, xmid = {cells:?}");
+    assert!((cells[0] - 97.0).abs() < 3.0, "{row}");
+    assert!((cells[1] - 3.2).abs() < 0.6, "{row}");
+    assert!((cells[2] + 1.30).abs() < 0.08, "{row}");
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn batch_report_shows_a_failing_group_and_still_writes_the_page() {
+    let d = scratch("batchfail");
+    // Invented: y = a*exp(-k*x) for wells A1 and C3; B2 has two rows, too few.
+    let mut text = String::from("well,x,y\nB2,0.5,2.0\nB2,1.0,1.5\n");
+    for (w, a, k) in [("A1", 10.0, 0.3), ("C3", 4.0, 0.8)] {
+        for i in 0..10 {
+            let x = i as f64 * 0.5;
+            text += &format!("{w},{x},{:.12}\n", a * (-k * x).exp());
+        }
+    }
+    let data = d.join("wells.csv");
+    std::fs::write(&data, text).unwrap();
+    let html_path = d.join("wells.html");
+    let (code, _, err) = run(&[
+        "report",
+        data.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--by",
+        "well",
+        "--out",
+        html_path.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 1, "one group failed: {err}");
+    assert!(
+        err.contains("1 of 3 groups did not converge (well = B2)"),
+        "{err}"
+    );
+    let html = std::fs::read_to_string(&html_path).unwrap();
+    assert!(
+        html.contains("<tr class=\"failed\"><td>B2</td><td>failed</td>"),
+        "failed row"
+    );
+    assert!(html.contains("too few"), "the reason is shown");
+    assert!(
+        html.contains("\nB2 (failed)\n</text>"),
+        "legend marks the failure"
+    );
+    let a1 = html.lines().find(|l| l.contains("<td>A1</td>")).unwrap();
+    assert!(a1.contains("<td class=\"num\">10.000 ± "), "{a1}");
+    assert!(html.contains("safety-critical"));
+    let _ = std::fs::remove_dir_all(&d);
+}
+
 #[test]
 fn report_without_starts_infers_them_and_a_bad_model_exits_two() {
     // Without --start, inference and the search supply the starts; the demo data
@@ -204,6 +318,50 @@ fn report_renders_in_headless_chromium() {
     let keep = Path::new(env!("CARGO_MANIFEST_DIR")).join("target/plots-check");
     if std::fs::create_dir_all(&keep).is_ok() {
         let _ = std::fs::copy(&shot, keep.join("report-chromium.png"));
+    }
+
+    // The batch page: the overlay chart and the group table are in the rendered DOM.
+    let batch = plate_batch_report(&d);
+    let url = format!("file://{}", batch.display());
+    let dom = run_with_deadline(
+        chromium(&d.join("profile-batch"))
+            .arg("--dump-dom")
+            .arg(&url),
+        &d,
+        limit,
+    )
+    .expect("chromium --dump-dom of the batch page finished in time");
+    assert!(
+        dom.matches("<svg").count() >= 2,
+        "overlay and grid in the DOM"
+    );
+    assert!(
+        dom.contains("one curve per compound\n</text>"),
+        "overlay chart title rendered"
+    );
+    assert!(
+        dom.contains("<table class=\"groups\">") && dom.contains("<td>ref std</td>"),
+        "group table in the DOM"
+    );
+    assert!(dom.contains("safety-critical"), "caution in the DOM");
+    let shot = d.join("batch.png");
+    run_with_deadline(
+        chromium(&d.join("profile-batch-shot"))
+            .arg(format!("--screenshot={}", shot.display()))
+            .arg("--window-size=1280,2400")
+            .arg(&url),
+        &d,
+        limit,
+    )
+    .expect("chromium --screenshot of the batch page finished in time");
+    let png = std::fs::read(&shot).expect("batch screenshot written");
+    assert!(
+        png.starts_with(b"\x89PNG") && png.len() > 50_000,
+        "batch page screenshot with content: {} bytes",
+        png.len()
+    );
+    if std::fs::create_dir_all(&keep).is_ok() {
+        let _ = std::fs::copy(&shot, keep.join("batch-chromium.png"));
     }
     let _ = std::fs::remove_dir_all(&d);
 }

@@ -113,7 +113,7 @@ pub struct FitArgs {
     /// The search that finds starts when none are given.
     #[command(flatten)]
     pub search: SearchBudget,
-    /// Fit each group of rows sharing a value of this (numeric) column separately;
+    /// Fit each group of rows sharing a value of this column (text labels or numbers) separately;
     /// one summary row per group.
     #[arg(long, value_name = "COLUMN")]
     pub by: Option<String>,

@@ -1,14 +1,15 @@
 //! `foothold fit --by COLUMN`: one curve per group of rows sharing a value of
-//! a numeric column, fitted in parallel (rayon), with a progress bar on a
+//! a column (text labels such as `A1` or numbers), fitted in parallel (rayon), with a progress bar on a
 //! terminal (indicatif). A failing group never stops the others; every group
 //! gets one summary row, in order of first appearance.
 
-use super::args::{FitArgs, Format};
+use super::args::{FitArgs, Format, InputArgs};
 use super::output::emit;
 use super::prepare::{bind_rows, model_for, run_fit, starting_values};
 use super::Outcome;
 use crate::data::Dataset;
 use crate::error::Error;
+use crate::fit::problem::Problem;
 use crate::report::fit_table::{format_number, SIGNIFICANT};
 use crate::report::formats::{aligned_table, csv_line, csv_number, to_json, to_yaml, Align};
 use crate::symbolic::Model;
@@ -96,22 +97,71 @@ pub fn groups_of(column: &[f64]) -> (Vec<(f64, Vec<usize>)>, usize) {
     (groups, missing)
 }
 
-/// The rows `rows` of `data`, as a dataset labelled with the group.
-fn subset(data: &Dataset, rows: &[usize], label: &str) -> Dataset {
-    Dataset {
-        columns: data.columns.clone(),
-        values: data
-            .values
-            .iter()
-            .map(|c| rows.iter().filter_map(|&i| c.get(i).copied()).collect())
+/// One group: its label and the indices of its rows.
+pub type Group = (String, Vec<usize>);
+
+/// The groups of the `--by` column `by`: labels in order of first appearance
+/// with their row indices, and the count of rows with an empty group cell.
+/// Text columns group by their text; numeric columns by value, printed as numbers.
+pub fn group_rows(data: &Dataset, by: &str) -> Option<(Vec<Group>, usize)> {
+    if let Some(t) = data.text_column(by) {
+        let mut groups: Vec<(String, Vec<usize>)> =
+            t.labels.iter().map(|l| (l.clone(), Vec::new())).collect();
+        let mut missing = 0;
+        for i in 0..t.len() {
+            match t.label_index(i) {
+                Some(k) => groups[k].1.push(i),
+                None => missing += 1,
+            }
+        }
+        // Labels are in order of first appearance, so none is left empty.
+        groups.retain(|(_, rows)| !rows.is_empty());
+        return Some((groups, missing));
+    }
+    let (groups, missing) = groups_of(data.column(by)?);
+    Some((
+        groups
+            .into_iter()
+            .map(|(k, rows)| (format!("{k}"), rows))
             .collect(),
+        missing,
+    ))
+}
+
+/// The rows `rows` of `data`'s numeric columns, as a dataset labelled with the group.
+pub fn subset(data: &Dataset, rows: &[usize], label: &str) -> Dataset {
+    let numeric: Vec<usize> = (0..data.columns.len())
+        .filter(|&j| data.text_column(&data.columns[j]).is_none())
+        .collect();
+    Dataset {
+        columns: numeric.iter().map(|&j| data.columns[j].clone()).collect(),
+        values: numeric
+            .iter()
+            .map(|&j| {
+                let c = &data.values[j];
+                rows.iter().filter_map(|&i| c.get(i).copied()).collect()
+            })
+            .collect(),
+        text: Vec::new(),
         source: label.to_string(),
         skipped_rows: 0,
     }
 }
 
+/// One group's fit: the summary row, and the bound problem and estimates
+/// (for plots) when the group got that far.
+#[derive(Debug, Clone)]
+pub struct GroupFit {
+    /// The summary row.
+    pub row: GroupRow,
+    /// The group's rows bound to the model; `None` when binding failed.
+    pub problem: Option<Problem>,
+    /// The estimates; empty when the group was not fitted.
+    pub estimates: Vec<f64>,
+}
+
 /// Fits one group; every error becomes a failed row.
-fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> GroupRow {
+fn fit_group(start: &[String], model: &Model, data: &Dataset, key: String) -> GroupFit {
     let names = &model.params;
     let failed = |message: String| GroupRow {
         group: key.clone(),
@@ -131,13 +181,25 @@ fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> Grou
     };
     let bound = match bind_rows(model.clone(), data) {
         Ok(b) => b,
-        Err(e) => return failed(e.to_string()),
+        Err(e) => {
+            return GroupFit {
+                row: failed(e.to_string()),
+                problem: None,
+                estimates: Vec::new(),
+            }
+        }
     };
-    let start = match starting_values(&args.start, &bound.problem) {
+    let start = match starting_values(start, &bound.problem) {
         Ok(s) => s,
-        Err(e) => return failed(e.to_string()),
+        Err(e) => {
+            return GroupFit {
+                row: failed(e.to_string()),
+                problem: Some(bound.problem),
+                estimates: Vec::new(),
+            }
+        }
     };
-    let (_, s) = run_fit(&bound.problem, &start);
+    let (result, s) = run_fit(&bound.problem, &start);
     let status = if s.converged {
         GroupStatus::Converged
     } else {
@@ -151,7 +213,7 @@ fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> Grou
         );
     }
     notes.extend(s.warnings.iter().cloned());
-    GroupRow {
+    let row = GroupRow {
         group: key,
         status,
         n_obs: s.n_obs,
@@ -167,42 +229,25 @@ fn fit_group(args: &FitArgs, model: &Model, data: &Dataset, key: String) -> Grou
             })
             .collect(),
         message: notes.join("; "),
+    };
+    GroupFit {
+        row,
+        problem: Some(bound.problem),
+        estimates: result.params,
     }
 }
 
-/// Runs the grouped fit of `fit --by`.
-pub fn run_batch(
-    args: &FitArgs,
+/// Fits every group in parallel (rayon), in the order given, with a progress
+/// bar on a terminal unless `quiet`.
+pub fn fit_groups(
+    start: &[String],
+    model: &Model,
     data: &Dataset,
-    out: &mut dyn Write,
-    err: &mut dyn Write,
-) -> Result<Outcome, Error> {
-    let by = args.by.clone().unwrap_or_default();
-    let Some(column) = data.column(&by) else {
-        return Err(Error::Usage(format!(
-            "--by names column '{by}', which is not in {} (columns: {})",
-            data.source,
-            data.column_list()
-        )));
-    };
-    let (_, model) = model_for(&args.input, data)?;
-    if model.vars.contains(&by) || model.response == by {
-        return Err(Error::Usage(format!(
-            "--by {by}: the model uses '{by}' itself; group by another column"
-        )));
-    }
-    let (groups, missing) = groups_of(column);
-    if groups.is_empty() {
-        return Err(Error::Usage(format!("--by {by}: the column has no values")));
-    }
-    let mut warnings = Vec::new();
-    if missing > 0 {
-        warnings.push(format!(
-            "skipped {missing} row{} with an empty '{by}' cell",
-            if missing == 1 { "" } else { "s" }
-        ));
-    }
-    let show = !args.output.quiet && std::io::stderr().is_terminal();
+    groups: &[Group],
+    by: &str,
+    quiet: bool,
+) -> Vec<GroupFit> {
+    let show = !quiet && std::io::stderr().is_terminal();
     let bar = if show {
         let b =
             ProgressBar::with_draw_target(Some(groups.len() as u64), ProgressDrawTarget::stderr());
@@ -215,17 +260,71 @@ pub fn run_batch(
     } else {
         ProgressBar::hidden()
     };
-    let rows: Vec<GroupRow> = groups
+    let fits: Vec<GroupFit> = groups
         .par_iter()
         .map(|(key, idx)| {
-            let key = format!("{key}");
             let label = format!("{} [{by} = {key}]", data.source);
-            let row = fit_group(args, &model, &subset(data, idx, &label), key);
+            let fit = fit_group(start, model, &subset(data, idx, &label), key.clone());
             bar.inc(1);
-            row
+            fit
         })
         .collect();
     bar.finish_and_clear();
+    fits
+}
+
+/// Checks the `--by` column and the model against the data and splits the
+/// rows into groups: (model, groups in order of first appearance, warnings).
+pub fn batch_groups(
+    input: &InputArgs,
+    data: &Dataset,
+    by: &str,
+) -> Result<(Model, Vec<Group>, Vec<String>), Error> {
+    if !data.has_column(by) {
+        return Err(Error::Usage(format!(
+            "--by names column '{by}', which is not in {} (columns: {})",
+            data.source,
+            data.column_list()
+        )));
+    }
+    let (_, model) = model_for(input, data)?;
+    if model.vars.iter().any(|v| v == by) || model.response == by {
+        return Err(Error::Usage(format!(
+            "--by {by}: the model uses '{by}' itself; group by another column"
+        )));
+    }
+    // A cell that is not a number in a column the model uses stops the batch once.
+    let mut used: Vec<&str> = model.vars.iter().map(String::as_str).collect();
+    used.push(&model.response);
+    data.check_numeric(&used)?;
+    let (groups, missing) = group_rows(data, by).unwrap_or_default();
+    if groups.is_empty() {
+        return Err(Error::Usage(format!("--by {by}: the column has no values")));
+    }
+    let mut warnings = Vec::new();
+    if missing > 0 {
+        warnings.push(format!(
+            "skipped {missing} row{} with an empty '{by}' cell",
+            if missing == 1 { "" } else { "s" }
+        ));
+    }
+    Ok((model, groups, warnings))
+}
+
+/// Runs the grouped fit of `fit --by`.
+pub fn run_batch(
+    args: &FitArgs,
+    data: &Dataset,
+    out: &mut dyn Write,
+    err: &mut dyn Write,
+) -> Result<Outcome, Error> {
+    let by = args.by.clone().unwrap_or_default();
+    let (model, groups, warnings) = batch_groups(&args.input, data, &by)?;
+    let rows: Vec<GroupRow> =
+        fit_groups(&args.start, &model, data, &groups, &by, args.output.quiet)
+            .into_iter()
+            .map(|f| f.row)
+            .collect();
     if !args.output.quiet {
         for w in &warnings {
             let _ = writeln!(err, "foothold: warning: {w}");
@@ -387,5 +486,26 @@ mod tests {
         assert_eq!(g[0].1, vec![0, 2]);
         assert_eq!(g[1].1, vec![1, 5]);
         assert_eq!(format!("{}", 3.0_f64), "3");
+    }
+
+    #[test]
+    fn text_labels_group_in_order_of_first_appearance() {
+        let d = crate::data::parse_delimited(
+            "well,x,y\nB12,1,2\nA1,2,3\n,3,4\nB12,4,5\nPC-3,5,6\n",
+            "p.csv",
+        )
+        .unwrap();
+        let (g, missing) = group_rows(&d, "well").unwrap();
+        assert_eq!(missing, 1);
+        let keys: Vec<&str> = g.iter().map(|(k, _)| k.as_str()).collect();
+        assert_eq!(keys, vec!["B12", "A1", "PC-3"]);
+        assert_eq!(g[0].1, vec![0, 3]);
+        let s = subset(&d, &g[0].1, "p.csv [well = B12]");
+        assert_eq!(s.columns, vec!["x", "y"], "the text column is left out");
+        assert_eq!(s.values, vec![vec![1.0, 4.0], vec![2.0, 5.0]]);
+        // Numeric group columns print as before.
+        let (g, _) = group_rows(&d, "x").unwrap();
+        assert_eq!(g[0].0, "1");
+        assert!(group_rows(&d, "none").is_none());
     }
 }

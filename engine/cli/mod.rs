@@ -5,6 +5,7 @@
 
 pub mod args;
 pub mod batch;
+pub mod batch_report;
 pub mod fit_cmd;
 pub mod infer_cmd;
 pub mod model_arg;

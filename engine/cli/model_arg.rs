@@ -114,6 +114,7 @@ mod tests {
             values: vec![vec![1.0]; cols.len()],
             source: "d.csv".into(),
             skipped_rows: 0,
+            text: Vec::new(),
         }
     }
 

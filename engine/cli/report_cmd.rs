@@ -1,7 +1,9 @@
 //! `foothold report`: fit the model and write one self-contained HTML page
-//! (data, features, starting values, ranking, estimates, plots, caution).
+//! (data, features, starting values, ranking, estimates, plots, caution);
+//! `--by` hands over to the batch page.
 
 use super::args::ReportArgs;
+use super::batch_report::run_batch_report;
 use super::output::{emit, write_plots};
 use super::prepare::{bind_rows, model_for, read_input, run_fit, starting_values};
 use super::Outcome;
@@ -48,12 +50,10 @@ pub fn run_report(
     out: &mut dyn Write,
     err: &mut dyn Write,
 ) -> Result<Outcome, Error> {
-    if args.search.by.is_some() {
-        return Err(Error::Usage(
-            "report --by is not available yet; use 'foothold fit --by' for grouped fits".into(),
-        ));
-    }
     let data = read_input(&args.input, false, err)?;
+    if args.search.by.is_some() {
+        return run_batch_report(args, &data, out, err);
+    }
     let (spec, model) = model_for(&args.input, &data)?;
     let bound = bind_rows(model, &data)?;
     let problem = &bound.problem;

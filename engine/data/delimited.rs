@@ -1,8 +1,10 @@
 //! Delimited text with a header line: the separator (comma, tab, or runs of
 //! whitespace) is detected from the header; cells are trimmed; double quotes
 //! may wrap a cell (`""` inside is a literal quote); blank lines and lines
-//! starting with `#` are skipped; empty cells are missing (NaN).
+//! starting with `#` are skipped; empty cells are missing (NaN); columns
+//! with cells that are not numbers are also kept as text.
 
+use super::text::{TextBuilder, TextColumn};
 use super::{DataError, Dataset, MAX_CELLS};
 
 /// How cells are separated on a line.
@@ -19,7 +21,40 @@ pub fn parse_delimited(text: &str, source: &str) -> Result<Dataset, DataError> {
     parse_delimited_limited(text, source, MAX_CELLS)
 }
 
-/// Parses delimited text, refusing more than `max_cells` cells.
+/// The lines after the header that hold data: (1-based line number, text).
+fn data_lines(text: &str) -> impl Iterator<Item = (usize, &str)> {
+    text.lines()
+        .enumerate()
+        .map(|(i, l)| (i + 1, l))
+        .filter(|(_, l)| {
+            let t = l.trim();
+            !t.is_empty() && !t.starts_with('#')
+        })
+}
+
+/// The error for a cell that is not a finite number.
+fn cell_error(source: &str, line: usize, column: &str, cell: &str, finite: bool) -> DataError {
+    let (path, column, text) = (source.to_string(), column.to_string(), cell.to_string());
+    if finite {
+        DataError::NotANumber {
+            path,
+            line,
+            column,
+            text,
+        }
+    } else {
+        DataError::NonFinite {
+            path,
+            line,
+            column,
+            text,
+        }
+    }
+}
+
+/// Parses delimited text, refusing more than `max_cells` cells. A column
+/// with a cell that is not a number is also kept as text (a second pass
+/// over the lines, only for such columns).
 pub(crate) fn parse_delimited_limited(
     text: &str,
     source: &str,
@@ -27,14 +62,7 @@ pub(crate) fn parse_delimited_limited(
 ) -> Result<Dataset, DataError> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     let path = || source.to_string();
-    let mut lines = text
-        .lines()
-        .enumerate()
-        .map(|(i, l)| (i + 1, l))
-        .filter(|(_, l)| {
-            let t = l.trim();
-            !t.is_empty() && !t.starts_with('#')
-        });
+    let mut lines = data_lines(text);
     let (header_line, header) = lines
         .next()
         .ok_or_else(|| DataError::Empty { path: path() })?;
@@ -46,6 +74,8 @@ pub(crate) fn parse_delimited_limited(
     check_header(&columns, source, header_line)?;
     let n_cols = columns.len();
     let mut values: Vec<Vec<f64>> = vec![Vec::new(); n_cols];
+    // Per column, the first cell that is not a finite number and where it is.
+    let mut first_bad: Vec<Option<(DataError, usize)>> = vec![None; n_cols];
     let mut cells = n_cols;
     for (line, text) in lines {
         let row = split_cells(text, sep)
@@ -65,36 +95,85 @@ pub(crate) fn parse_delimited_limited(
                 limit: max_cells,
             });
         }
-        for ((cell, name), col) in row.iter().zip(&columns).zip(values.iter_mut()) {
-            col.push(parse_cell(cell).map_err(|finite| {
-                let (path, column, text) = (path(), name.clone(), cell.clone());
-                if finite {
-                    DataError::NotANumber {
-                        path,
-                        line,
-                        column,
-                        text,
-                    }
-                } else {
-                    DataError::NonFinite {
-                        path,
-                        line,
-                        column,
-                        text,
+        for (j, ((cell, name), col)) in row.iter().zip(&columns).zip(values.iter_mut()).enumerate()
+        {
+            match parse_cell(cell) {
+                Ok(v) => col.push(v),
+                Err(finite) => {
+                    col.push(f64::NAN);
+                    if first_bad[j].is_none() {
+                        first_bad[j] = Some((cell_error(source, line, name, cell, finite), line));
                     }
                 }
-            })?);
+            }
         }
     }
-    if values.first().map_or(true, |c| c.is_empty()) {
+    let n_rows = values.first().map_or(0, Vec::len);
+    if n_rows == 0 {
         return Err(DataError::HeaderOnly { path: path() });
     }
+    // A header name and a cell both holding ';' mean a semicolon-separated
+    // file, not a column of labels: refuse it now, with the hint.
+    let semicolons = columns
+        .iter()
+        .zip(&first_bad)
+        .find_map(|(name, bad)| match bad {
+            Some((e @ DataError::NotANumber { text, .. }, _))
+                if name.contains(';') && text.contains(';') =>
+            {
+                Some(e.clone())
+            }
+            _ => None,
+        });
+    if let Some(e) = semicolons {
+        return Err(e);
+    }
+    let text_cols = text_columns(text, sep, &columns, first_bad, n_rows);
     Ok(Dataset {
         columns,
         values,
+        text: text_cols,
         source: source.to_string(),
         skipped_rows: 0,
     })
+}
+
+/// Reads the cells of the columns that have a bad cell again, as text.
+fn text_columns(
+    text: &str,
+    sep: Separator,
+    columns: &[String],
+    first_bad: Vec<Option<(DataError, usize)>>,
+    n_rows: usize,
+) -> Vec<TextColumn> {
+    let wanted: Vec<usize> = (0..columns.len())
+        .filter(|&j| first_bad[j].is_some())
+        .collect();
+    if wanted.is_empty() {
+        return Vec::new();
+    }
+    let mut builders: Vec<TextBuilder> = wanted
+        .iter()
+        .map(|_| TextBuilder::with_rows(n_rows))
+        .collect();
+    // The first pass accepted every line, so each splits into the header's width.
+    for (_, line) in data_lines(text).skip(1) {
+        let Some(row) = split_cells(line, sep) else {
+            continue;
+        };
+        for (b, &j) in builders.iter_mut().zip(&wanted) {
+            b.push(row.get(j).map(String::as_str).unwrap_or(""));
+        }
+    }
+    let mut first_bad = first_bad;
+    builders
+        .into_iter()
+        .zip(&wanted)
+        .filter_map(|(b, &j)| {
+            let (err, line) = first_bad[j].take()?;
+            Some(b.finish(&columns[j], err, (line, j)))
+        })
+        .collect()
 }
 
 /// A cell's value: NaN for an empty cell (missing); `Err(true)` for text that
@@ -267,8 +346,14 @@ mod tests {
     }
 
     #[test]
-    fn text_and_non_finite_cells_name_line_and_column() {
-        let e = parse("x,y\n1,2\n# c\n3,abc\n").unwrap_err();
+    fn text_and_non_finite_cells_name_line_and_column_when_used() {
+        let d = parse("x,y\n1,2\n# c\n3,abc\n").unwrap();
+        // The reader keeps the text; a model using y gets the error.
+        assert_eq!(d.values[0], vec![1.0, 3.0]);
+        assert!(d.values[1][1].is_nan());
+        assert_eq!(d.text_column("y").unwrap().cell(1), Some("abc"));
+        assert!(d.select(&["x"]).is_ok(), "x alone is all numbers");
+        let e = d.select(&["x", "y"]).unwrap_err();
         assert_eq!(
             e,
             DataError::NotANumber {
@@ -283,9 +368,9 @@ mod tests {
             "t.csv, line 4, column 'y': 'abc' is not a number"
         );
         for bad in ["NaN", "nan", "inf", "-inf", "Infinity", "1e400"] {
-            let e = parse(&format!("x,y\n1,{bad}\n")).unwrap_err();
+            let d = parse(&format!("x,y\n1,{bad}\n")).unwrap();
             assert_eq!(
-                e,
+                d.select(&["y", "x"]).unwrap_err(),
                 DataError::NonFinite {
                     path: "t.csv".into(),
                     line: 2,
@@ -294,6 +379,59 @@ mod tests {
                 }
             );
         }
+    }
+
+    #[test]
+    fn the_earliest_bad_cell_of_the_used_columns_is_named() {
+        let d = parse("x,y,note\n1,2,ok\n2,b,c\na,3,d\n").unwrap();
+        let e = d.select(&["x", "y"]).unwrap_err();
+        assert!(
+            matches!(&e, DataError::NotANumber { line: 3, column, .. } if column == "y"),
+            "{e:?}"
+        );
+        let e = d.select(&["x"]).unwrap_err();
+        assert!(
+            matches!(&e, DataError::NotANumber { line: 4, column, .. } if column == "x"),
+            "{e:?}"
+        );
+        assert_eq!(
+            d.text.iter().map(|t| t.name.as_str()).collect::<Vec<_>>(),
+            vec!["x", "y", "note"]
+        );
+    }
+
+    #[test]
+    fn group_labels_are_kept_as_text() {
+        let d = parse(
+            "well,dose,signal\nA1,0.1,5\n\"spec 2\",0.2,6\nB12,0.3,7\n,0.4,8\nPC-3,0.5,9\nA1,0.6,10\n7,0.7,11\n",
+        )
+        .unwrap();
+        let w = d.text_column("well").unwrap();
+        assert_eq!(w.labels, vec!["A1", "spec 2", "B12", "PC-3", "7"]);
+        let cells: Vec<Option<&str>> = (0..w.len()).map(|i| w.cell(i)).collect();
+        assert_eq!(
+            cells,
+            vec![
+                Some("A1"),
+                Some("spec 2"),
+                Some("B12"),
+                None,
+                Some("PC-3"),
+                Some("A1"),
+                Some("7")
+            ]
+        );
+        assert!(
+            d.text_column("dose").is_none(),
+            "numeric columns carry no text"
+        );
+        let s = d.select(&["dose", "signal"]).unwrap();
+        assert_eq!(s.values[1], vec![5.0, 6.0, 7.0, 8.0, 9.0, 10.0, 11.0]);
+        assert!(s.text.is_empty());
+        assert!(matches!(
+            d.select(&["well"]).unwrap_err(),
+            DataError::NotANumber { line: 2, .. }
+        ));
     }
 
     #[test]

@@ -241,7 +241,7 @@ fn workbook_text_cell_names_sheet_row_and_column() {
             ],
         )],
     );
-    let e = read(f.path()).unwrap_err();
+    let e = read(f.path()).unwrap().select(&["x", "y"]).unwrap_err();
     assert!(
         matches!(&e, DataError::TextCell(c) if c.sheet == "Data" && c.row == 3 && c.column == "y" && c.text == "high"),
         "{e:?}"
@@ -249,6 +249,36 @@ fn workbook_text_cell_names_sheet_row_and_column() {
     assert_eq!(
         e.to_string(),
         format!("{}, sheet 'Data', row 3, column 'y': the text 'high' is not a number; if it is a number stored as text, convert the column to numbers", f.path())
+    );
+}
+
+#[test]
+fn workbook_group_labels_are_kept_as_text() {
+    let f = write_xlsx(
+        "labels.xlsx",
+        &[(
+            "Plate",
+            vec![
+                vec![Some("well"), Some("dose"), Some("signal")],
+                vec![Some("A1"), Some("0.1"), Some("5")],
+                vec![Some("B12"), Some("0.2"), Some("6")],
+                vec![None, Some("0.3"), Some("7")],
+                vec![Some("A1"), Some("0.4"), Some("8")],
+                vec![Some("3"), Some("0.5"), Some("9")],
+            ],
+        )],
+    );
+    let d = read(f.path()).unwrap();
+    let w = d.text_column("well").expect("well kept as text");
+    assert_eq!(w.labels, vec!["A1", "B12", "3"]);
+    assert_eq!(w.cell(2), None, "empty cell is missing");
+    assert_eq!(w.label_index(3), Some(0));
+    assert_eq!(d.column("signal").unwrap(), &[5.0, 6.0, 7.0, 8.0, 9.0]);
+    let e = d.select(&["dose", "well"]).unwrap_err();
+    assert!(
+        e.to_string()
+            .contains("sheet 'Plate', row 2, column 'well': the text 'A1' is not a number"),
+        "{e}"
     );
 }
 

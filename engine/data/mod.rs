@@ -2,7 +2,9 @@
 //! runs of whitespace) with a header, and spreadsheet workbooks (.xlsx, .xls,
 //! .xlsm, .xlsb, .ods). Empty cells are *missing* (NaN in [`Dataset::values`]);
 //! the model decides which columns matter and [`Dataset::select`] drops the
-//! incomplete rows.
+//! incomplete rows. A column with cells that are not numbers is kept as text
+//! (group labels for `--by`); the error naming its first such cell is raised
+//! only when a model uses the column.
 
 mod delimited;
 mod error;
@@ -10,20 +12,26 @@ mod error;
 mod file_tests;
 mod limits;
 mod select;
+mod text;
 mod workbook;
 
 pub use delimited::parse_delimited;
 pub use error::{CellKind, DataError, SheetCellError};
 pub use limits::{MAX_CELLS, MAX_INPUT_BYTES};
+pub use text::TextColumn;
 pub use workbook::WORKBOOK_EXTENSIONS;
 
-/// A table of numeric columns, column-major.
+/// A table of columns, column-major: numbers for every column, and the
+/// text of the columns that hold cells that are not numbers.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Dataset {
     /// Column names from the header, in file order.
     pub columns: Vec<String>,
-    /// `values[j][i]`: row i of column j. All columns have the same length. NaN = missing cell.
+    /// `values[j][i]`: row i of column j. All columns have the same length.
+    /// NaN = missing cell (and, in a text column, a cell that is not a number).
     pub values: Vec<Vec<f64>>,
+    /// The columns with cells that are not numbers, as text (file order).
+    pub text: Vec<TextColumn>,
     /// Where the data came from (a path, or a label).
     pub source: String,
     /// Rows skipped because a needed cell was empty (reported as a warning).
@@ -31,7 +39,8 @@ pub struct Dataset {
 }
 
 impl Dataset {
-    /// The column with this name.
+    /// The column with this name, as numbers (see [`Dataset::select`] for a
+    /// check that it holds only numbers).
     pub fn column(&self, name: &str) -> Option<&[f64]> {
         self.columns
             .iter()
@@ -46,6 +55,23 @@ impl Dataset {
     /// True when the table has a column of this name.
     pub fn has_column(&self, name: &str) -> bool {
         self.columns.iter().any(|c| c == name)
+    }
+    /// The column with this name as text, when it holds cells that are not numbers.
+    pub fn text_column(&self, name: &str) -> Option<&TextColumn> {
+        self.text.iter().find(|t| t.name == name)
+    }
+    /// Refuses the named columns when any holds a cell that is not a number:
+    /// the error names the earliest such cell (by line, then column).
+    pub fn check_numeric<S: AsRef<str>>(&self, names: &[S]) -> Result<(), DataError> {
+        let first = self
+            .text
+            .iter()
+            .filter(|t| names.iter().any(|n| n.as_ref() == t.name))
+            .min_by_key(|t| t.at);
+        match first {
+            Some(t) => Err(t.first_bad.clone()),
+            None => Ok(()),
+        }
     }
 }
 

@@ -6,7 +6,8 @@ use super::{DataError, Dataset};
 impl Dataset {
     /// A new dataset of just the named columns (in the order given, repeats
     /// ignored) without the rows that have a missing cell in any of them;
-    /// `skipped_rows` of the result counts those rows.
+    /// `skipped_rows` of the result counts those rows. A named column that
+    /// holds a cell that is not a number is refused with the error naming it.
     pub fn select<S: AsRef<str>>(&self, names: &[S]) -> Result<Dataset, DataError> {
         let mut wanted: Vec<&str> = Vec::new();
         for n in names {
@@ -22,6 +23,7 @@ impl Dataset {
                 available: self.columns.join(", "),
             })?);
         }
+        self.check_numeric(&wanted)?;
         let n = self.n_rows();
         let keep: Vec<usize> = (0..n)
             .filter(|&i| cols.iter().all(|c| c.get(i).is_some_and(|v| !v.is_nan())))
@@ -39,6 +41,7 @@ impl Dataset {
         Ok(Dataset {
             columns: wanted.iter().map(|s| s.to_string()).collect(),
             values,
+            text: Vec::new(),
             source: self.source.clone(),
             skipped_rows: n - keep.len(),
         })

@@ -1,8 +1,10 @@
 //! Spreadsheet workbooks (.xlsx, .xlsm, .xlsb, .xls, .ods) through the
 //! `calamine` crate: the first non-empty row of the chosen sheet is the
-//! header; data cells must be numbers; empty cells are missing (NaN).
+//! header; empty cells are missing (NaN); a column with cells that are not
+//! numbers is also kept as text, and refused only when a model uses it.
 
 use super::error::{CellKind, SheetCellError};
+use super::text::TextBuilder;
 use super::{DataError, Dataset, ReadOptions};
 use calamine::{open_workbook_auto, Data, Reader};
 
@@ -127,24 +129,48 @@ fn table_from_rows(
         });
     }
     let mut values = vec![Vec::with_capacity(rows.len() - 1); keep.len()];
+    // Per kept column, the first cell that is not a number.
+    let mut first_bad: Vec<Option<(DataError, usize)>> = vec![None; keep.len()];
     for (row, cells) in &rows[1..] {
-        for ((j, name), col) in keep.iter().zip(values.iter_mut()) {
+        for (k, ((j, name), col)) in keep.iter().zip(values.iter_mut()).enumerate() {
             let cell = cells.get(*j).unwrap_or(&Data::Empty);
-            col.push(cell_value(cell).map_err(|kind| {
-                DataError::TextCell(Box::new(SheetCellError {
-                    path: path.to_string(),
-                    sheet: sheet.to_string(),
-                    row: *row,
-                    column: name.clone(),
-                    text: cell.to_string(),
-                    kind,
-                }))
-            })?);
+            match cell_value(cell) {
+                Ok(v) => col.push(v),
+                Err(kind) => {
+                    col.push(f64::NAN);
+                    if first_bad[k].is_none() {
+                        let e = DataError::TextCell(Box::new(SheetCellError {
+                            path: path.to_string(),
+                            sheet: sheet.to_string(),
+                            row: *row,
+                            column: name.clone(),
+                            text: cell.to_string(),
+                            kind,
+                        }));
+                        first_bad[k] = Some((e, *row));
+                    }
+                }
+            }
         }
+    }
+    // Columns with a cell that is not a number are also kept as text.
+    let mut text = Vec::new();
+    for (k, bad) in first_bad.into_iter().enumerate() {
+        let Some((err, row)) = bad else { continue };
+        let (j, name) = &keep[k];
+        let mut b = TextBuilder::with_rows(rows.len() - 1);
+        for (_, cells) in &rows[1..] {
+            match cells.get(*j) {
+                None | Some(Data::Empty) => b.push(""),
+                Some(c) => b.push(&c.to_string()),
+            }
+        }
+        text.push(b.finish(name, err, (row, *j)));
     }
     Ok(Dataset {
         columns: keep.into_iter().map(|(_, n)| n).collect(),
         values,
+        text,
         source: path.to_string(),
         skipped_rows: 0,
     })
@@ -237,7 +263,10 @@ mod tests {
             .enumerate()
             .map(|(i, r)| (i + 3, r.as_slice()))
             .collect();
-        let e = table_from_rows("b.xlsx", "S", &rows).unwrap_err();
+        let d = table_from_rows("b.xlsx", "S", &rows).unwrap();
+        assert_eq!(d.text_column("y").unwrap().cell(0), Some("n/a"));
+        assert!(d.text_column("t").is_none());
+        let e = d.select(&["t", "y"]).unwrap_err();
         assert!(
             matches!(&e, DataError::TextCell(c) if c.row == 4 && c.column == "y" && c.text == "n/a" && c.kind == CellKind::Text)
         );

@@ -262,6 +262,7 @@ mod tests {
             values,
             source: "test".into(),
             skipped_rows: 0,
+            text: Vec::new(),
         }
     }
 

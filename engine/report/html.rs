@@ -126,7 +126,7 @@ pub fn escape_html(s: &str) -> String {
 }
 
 /// Formats a number with `sig` significant digits, plain or scientific as fits.
-fn num(v: f64, sig: usize) -> String {
+pub(crate) fn num(v: f64, sig: usize) -> String {
     if v.is_nan() {
         return "—".to_string();
     }
@@ -146,7 +146,7 @@ fn num(v: f64, sig: usize) -> String {
 }
 
 /// Inline stylesheet: readable typography, quiet tables, print-friendly.
-const CSS: &str = r#"
+pub(crate) const CSS: &str = r#"
 :root { --ink: #1f2328; --muted: #59636e; --rule: #d0d7de; --band: #f6f8fa; --accent: #0072b2; --warn: #d55e00; }
 * { box-sizing: border-box; }
 body { margin: 0; color: var(--ink); background: #fff;
@@ -257,11 +257,11 @@ pub fn render_report(input: &ReportInput) -> String {
     h
 }
 
-fn section(h: &mut String, heading: &str) {
+pub(crate) fn section(h: &mut String, heading: &str) {
     let _ = writeln!(h, "<h2>{}</h2>", escape_html(heading));
 }
 
-fn facts(h: &mut String, pairs: &[(String, String)]) {
+pub(crate) fn facts(h: &mut String, pairs: &[(String, String)]) {
     if pairs.is_empty() {
         return;
     }
@@ -427,7 +427,7 @@ fn has_event_attribute(s: &str) -> bool {
 
 /// Embeds an SVG inline: drops any XML prolog and the namespace URL (inline
 /// SVG in HTML5 needs neither), and refuses anything that is not plain SVG.
-fn figure(h: &mut String, svg: &str, caption: &str) {
+pub(crate) fn figure(h: &mut String, svg: &str, caption: &str) {
     let body = svg.trim();
     let body = match body.find("<svg") {
         Some(i) if body[..i].trim().is_empty() || body[..i].trim_start().starts_with("<?xml") => {

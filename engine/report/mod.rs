@@ -2,6 +2,7 @@
 
 pub mod assemble;
 pub mod atomic;
+pub mod batch_html;
 pub mod fit_json;
 pub mod fit_table;
 pub mod formats;

@@ -3,9 +3,11 @@
 //! text or PNG files. Inputs are plain structs so any caller can fill them.
 
 mod geometry;
+mod overlay;
 mod panel;
 mod style;
 
+pub use overlay::{group_panel, GroupSeries, Overlay, MAX_LEGEND};
 pub use panel::{Curve, Panel, Segment};
 pub use style::format_num;
 
@@ -218,6 +220,27 @@ pub fn survey_sheet_png(panels: &[Panel], path: &Path) -> Result<(), PlotError> 
 /// Never fails: on a drawing error the SVG says why the plot is missing.
 pub fn fit_sheet_svg(sheet: &FitSheet) -> String {
     svg_of(FIT_SIZE, |root| draw_fit(root, sheet)).unwrap_or_else(|e| failure_svg(FIT_SIZE, &e))
+}
+
+/// The batch overlay as SVG: every group's points and fitted curve, a colour
+/// and marker per group, the legend beside the chart. Never fails: on a
+/// drawing error the SVG says why the plot is missing.
+pub fn overlay_svg(o: &Overlay) -> String {
+    let size = overlay::OVERLAY_SIZE;
+    svg_of(size, |root| overlay::draw_overlay(root, o)).unwrap_or_else(|e| failure_svg(size, &e))
+}
+
+/// The batch overlay written as a PNG file at `path`.
+pub fn overlay_png(o: &Overlay, path: &Path) -> Result<(), PlotError> {
+    png_of(overlay::OVERLAY_SIZE, path, |root| {
+        overlay::draw_overlay(root, o)
+    })
+}
+
+/// A grid of group panels (see [`group_panel`]) three to a row, as SVG.
+pub fn group_grid_svg(panels: &[Panel]) -> String {
+    let size = overlay::grid_size(panels.len());
+    svg_of(size, |root| overlay::draw_grid(root, panels)).unwrap_or_else(|e| failure_svg(size, &e))
 }
 
 /// Fit sheet written as a PNG file at `path` (parent directory must exist).

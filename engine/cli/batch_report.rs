@@ -1,0 +1,209 @@
+//! `foothold report --by COLUMN`: fit every group (as `fit --by`) and write
+//! one self-contained HTML page for the batch: summary table, an overlay of
+//! every group's data and fitted curve, a grid of per-group panels, warnings
+//! and the caution. A failing group shows as failed; it never stops the page.
+
+use super::args::ReportArgs;
+use super::batch::{batch_groups, fit_groups, GroupFit, GroupStatus};
+use super::model_arg::resolve_model;
+use super::output::emit;
+use super::report_cmd::report_date;
+use super::Outcome;
+use crate::data::Dataset;
+use crate::error::Error;
+use crate::report::assemble::fit_sheet;
+use crate::report::batch_html::{render_batch_report, BatchGroupRow, BatchReportInput};
+use crate::report::plot::{group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay};
+use crate::symbolic::Model;
+use std::io::Write;
+
+/// Most groups drawn as separate panels; the overlay and the table show them all.
+pub const MAX_PANELS: usize = 24;
+
+/// The points and fitted curve of one group for the plots.
+fn series(fit: &GroupFit, model: &Model, data: &Dataset, rows: &[usize]) -> GroupSeries {
+    let note = match fit.row.status {
+        GroupStatus::Converged => String::new(),
+        GroupStatus::NotConverged => "not converged".into(),
+        GroupStatus::Failed => "failed".into(),
+    };
+    let (points, curve) = match &fit.problem {
+        Some(problem) => {
+            let x = problem.x.first().cloned().unwrap_or_default();
+            let points = x.iter().copied().zip(problem.y.iter().copied()).collect();
+            let curve = if fit.estimates.len() == model.params.len() {
+                fit_sheet(problem, &[], &fit.estimates, "").fitted_curve
+            } else {
+                Vec::new()
+            };
+            (points, curve)
+        }
+        // Not bound (e.g. too few rows): the raw cells, when the response is untransformed.
+        None => {
+            let xs = model.vars.first().and_then(|v| data.column(v));
+            let ys = data.column(&model.response);
+            let points = match (xs, ys, &model.lhs) {
+                (Some(xs), Some(ys), None) => rows
+                    .iter()
+                    .filter_map(|&i| Some((*xs.get(i)?, *ys.get(i)?)))
+                    .filter(|(x, y)| x.is_finite() && y.is_finite())
+                    .collect(),
+                _ => Vec::new(),
+            };
+            (points, Vec::new())
+        }
+    };
+    GroupSeries {
+        label: fit.row.group.clone(),
+        note,
+        points,
+        curve,
+    }
+}
+
+/// Runs `report --by`: the batch page goes to `--out` (atomically) or to `out`.
+pub fn run_batch_report(
+    args: &ReportArgs,
+    data: &Dataset,
+    out: &mut dyn Write,
+    err: &mut dyn Write,
+) -> Result<Outcome, Error> {
+    let by = args.search.by.clone().unwrap_or_default();
+    if args.plots.is_some() {
+        return Err(Error::Usage(
+            "--plots draws one curve; it cannot be combined with --by (the page holds the batch plots)"
+                .into(),
+        ));
+    }
+    let (model, groups, mut warnings) = batch_groups(&args.input, data, &by)?;
+    let fits = fit_groups(&args.start, &model, data, &groups, &by, args.quiet);
+
+    let x_name = model.vars.first().cloned().unwrap_or_default();
+    let y_label = match &model.lhs {
+        Some(l) => l
+            .display(&[], std::slice::from_ref(&model.response))
+            .to_string(),
+        None => model.response.clone(),
+    };
+    let all: Vec<GroupSeries> = fits
+        .iter()
+        .zip(&groups)
+        .map(|(f, (_, rows))| series(f, &model, data, rows))
+        .collect();
+    let overlay = Overlay {
+        title: format!("{y_label} against {x_name}, one curve per {by}"),
+        x_label: x_name.clone(),
+        y_label: y_label.clone(),
+        groups: all.clone(),
+    };
+    let panels: Vec<_> = all
+        .iter()
+        .take(MAX_PANELS)
+        .map(|g| group_panel(g, &x_name, &y_label))
+        .collect();
+    let grid_caption = if all.len() > MAX_PANELS {
+        format!(
+            "Each group's data and fitted curve: the first {MAX_PANELS} of {} groups (all are in the table and the chart above).",
+            all.len()
+        )
+    } else {
+        "Each group's data and fitted curve on its own axes.".to_string()
+    };
+
+    let rows: Vec<BatchGroupRow> = fits
+        .iter()
+        .map(|f| BatchGroupRow {
+            group: f.row.group.clone(),
+            status: f.row.status.as_str().to_string(),
+            n_obs: f.row.n_obs,
+            estimates: f
+                .row
+                .parameters
+                .iter()
+                .map(|p| (p.estimate, p.std_error))
+                .collect(),
+            ssr: f.row.ssr,
+            message: f.row.message.clone(),
+        })
+        .collect();
+    let bad: Vec<&str> = fits
+        .iter()
+        .filter(|f| f.row.status != GroupStatus::Converged)
+        .map(|f| f.row.group.as_str())
+        .collect();
+    if !bad.is_empty() {
+        warnings.push(format!(
+            "{} of {} groups did not converge or failed ({by} = {}); see the notes under the table",
+            bad.len(),
+            fits.len(),
+            bad.join(", ")
+        ));
+    }
+    let file = std::path::Path::new(&data.source)
+        .file_name()
+        .map(|f| f.to_string_lossy().into_owned())
+        .unwrap_or_else(|| data.source.clone());
+    let title = match resolve_model(&args.input.model, args.input.x.as_deref())
+        .ok()
+        .and_then(|s| s.library)
+    {
+        Some(m) => format!(
+            "Batch fit of the {} model to {file}, one curve per {by}",
+            m.name
+        ),
+        None => format!("Batch fit to {file}, one curve per {by}"),
+    };
+    let used: usize = fits.iter().map(|f| f.row.n_obs).sum();
+    let mut columns = model
+        .vars
+        .iter()
+        .map(|v| format!("{v} (predictor)"))
+        .collect::<Vec<_>>();
+    columns.push(format!("{} (response)", model.response));
+    columns.push(format!("{by} (groups)"));
+    let data_facts = vec![
+        ("File".to_string(), data.source.clone()),
+        ("Rows read".to_string(), data.n_rows().to_string()),
+        ("Groups".to_string(), fits.len().to_string()),
+        ("Rows used in fits".to_string(), used.to_string()),
+        ("Columns used".to_string(), columns.join(", ")),
+        (
+            "Starting values".to_string(),
+            if args.start.iter().any(|s| !s.trim().is_empty()) {
+                "given on the command line (--start), the same for every group".to_string()
+            } else {
+                "worked out for each group by inference and the multistart search".to_string()
+            },
+        ),
+    ];
+    let input = BatchReportInput {
+        title,
+        date: report_date(),
+        model: model.text.clone(),
+        data_facts,
+        by: by.clone(),
+        parameters: model.params.clone(),
+        groups: rows,
+        overlay_svg: overlay_svg(&overlay),
+        grid_svg: group_grid_svg(&panels),
+        grid_caption,
+        warnings: warnings.clone(),
+    };
+    let page = render_batch_report(&input);
+    if !args.quiet {
+        for w in &warnings {
+            let _ = writeln!(err, "foothold: warning: {w}");
+        }
+    }
+    emit(&page, args.out.as_deref(), out)?;
+    if bad.is_empty() {
+        Ok(Outcome::Success)
+    } else {
+        Ok(Outcome::NotConverged(format!(
+            "{} of {} groups did not converge ({by} = {}); the report shows them",
+            bad.len(),
+            fits.len(),
+            bad.join(", ")
+        )))
+    }
+}
