@@ -117,13 +117,20 @@ pub fn starts_with_options(
 ) -> Result<(Vec<f64>, (usize, usize)), Error> {
     let (inf, outcome) = infer_and_search(problem, opts)?;
     let counts = (outcome.candidates_tried, outcome.minima.len());
-    let start = outcome
+    let start = best_start(&inf, &outcome).0;
+    Ok((start, counts))
+}
+
+/// The start a fit should use after the search: the point of the best-ranked
+/// proper minimum (finite, no parameter at a boundary or at infinity) with its
+/// rank, or the inferred start (rank `None`) when the search found none.
+pub fn best_start(inf: &Inference, outcome: &SearchOutcome) -> (Vec<f64>, Option<usize>) {
+    outcome
         .minima
         .iter()
         .find(|m| m.divergent.is_empty() && m.params.iter().all(|v| v.is_finite()))
-        .map(|m| m.params.clone())
-        .unwrap_or(inf.start);
-    Ok((start, counts))
+        .map(|m| (m.params.clone(), Some(m.rank)))
+        .unwrap_or_else(|| (inf.start.clone(), None))
 }
 
 #[cfg(test)]

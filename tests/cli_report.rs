@@ -210,6 +210,19 @@ fn report_without_starts_infers_them_and_a_bad_model_exits_two() {
     assert_eq!(code, 0, "{err}");
     assert!(out.contains("0.0853"), "fitted k missing from the report");
     assert!(out.matches("<svg").count() >= 2);
+    // Each start says how inference earned it and what the search made of it,
+    // and the ranking of minima lists the search's minima, the best first.
+    let starts = &out[out.find("Starting values").expect("starts section")..];
+    assert!(starts.contains("enters linearly"), "{starts:.2000}");
+    assert!(starts.contains("k: rate; scanned"), "{starts:.2000}");
+    assert!(starts.contains("multistart search (64 starts): minimum ranked 1 of"));
+    let ranking = &out[out.find("Ranking of minima").expect("ranking section")..];
+    let first = ranking.find("<td>1</td>").or_else(|| ranking.find(">1<"));
+    assert!(first.is_some(), "{ranking:.1500}");
+    assert!(
+        ranking[..1500.min(ranking.len())].contains("k = 0.0853"),
+        "{ranking:.1500}"
+    );
     let (code, _, err) = run(&[
         "report",
         "demo-data/part_cooling.csv",

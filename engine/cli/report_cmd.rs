@@ -6,11 +6,16 @@ use super::args::ReportArgs;
 use super::batch_report::run_batch_report;
 use super::output::{emit, write_plots};
 use super::prepare::{bind_rows, model_for, read_input, run_fit, starting_values};
+use super::rank_cmd::search_options;
 use super::Outcome;
+use crate::auto_start::{best_start, infer_and_search};
 use crate::error::Error;
 use crate::features::detect;
+use crate::fit::problem::Problem;
 use crate::report::assemble::{fit_sheet, report_input, survey_panels, ReportParts};
-use crate::report::html::{render_report, StartingValueRow};
+use crate::report::fit_table::{format_number, SIGNIFICANT};
+use crate::report::html::{render_report, MinimumRow, StartingValueRow};
+use crate::search::SearchOptions;
 use std::io::Write;
 
 /// Today's date (UTC) as YYYY-MM-DD, or the date of `SOURCE_DATE_EPOCH` when
@@ -44,6 +49,89 @@ fn civil_from_days(z: i64) -> (i64, u32, u32) {
     (y, m, d)
 }
 
+/// Minima listed in the report's ranking.
+const REPORT_MINIMA: usize = 10;
+
+/// Starts found by inference and the multistart search: the start the fit
+/// uses, one row per parameter saying how it was earned, and the ranked minima.
+fn searched_starts(
+    problem: &Problem,
+    opts: &SearchOptions,
+) -> Result<(Vec<f64>, Vec<StartingValueRow>, Vec<MinimumRow>), Error> {
+    let (inf, outcome) = infer_and_search(problem, opts)?;
+    let (start, rank) = best_start(&inf, &outcome);
+    let names = &problem.model.params;
+    let rows = names
+        .iter()
+        .enumerate()
+        .map(|(i, name)| {
+            let inferred = inf.parameters.iter().find(|p| &p.name == name);
+            let how = inferred
+                .map(|p| {
+                    format!(
+                        "inferred {} — {}",
+                        format_number(p.start, SIGNIFICANT),
+                        p.derivation
+                    )
+                })
+                .unwrap_or_else(|| "no inferred value".into());
+            let derivation = match rank {
+                Some(r) => format!(
+                    "{how}; then the multistart search ({} starts): minimum ranked {r} of {}",
+                    outcome.candidates_tried,
+                    outcome.minima.len()
+                ),
+                None => format!(
+                    "{how}; the multistart search ({} starts) found no proper minimum, so the inferred value is used",
+                    outcome.candidates_tried
+                ),
+            };
+            StartingValueRow {
+                parameter: name.clone(),
+                value: start.get(i).copied().unwrap_or(f64::NAN),
+                derivation,
+            }
+        })
+        .collect();
+    let minima = outcome
+        .minima
+        .iter()
+        .take(REPORT_MINIMA)
+        .map(|m| MinimumRow {
+            rank: m.rank,
+            ssr: m.ssr,
+            share: m.share,
+            iterations: if m.iterations_median.is_finite() {
+                m.iterations_median.round() as usize
+            } else {
+                0
+            },
+            parameters: {
+                let point = names
+                    .iter()
+                    .zip(&m.params)
+                    .map(|(n, v)| format!("{n} = {}", format_number(*v, SIGNIFICANT)))
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                let divergent: Vec<&str> = m
+                    .divergent
+                    .iter()
+                    .filter_map(|&i| names.get(i).map(String::as_str))
+                    .collect();
+                if divergent.is_empty() {
+                    point
+                } else {
+                    format!(
+                        "{point} (at a boundary or running to infinity: {})",
+                        divergent.join(", ")
+                    )
+                }
+            },
+        })
+        .collect();
+    Ok((start, rows, minima))
+}
+
 /// Runs `report`; the page goes to `--out` (atomically) or to `out`.
 pub fn run_report(
     args: &ReportArgs,
@@ -58,25 +146,24 @@ pub fn run_report(
     let bound = bind_rows(model, &data)?;
     let problem = &bound.problem;
     let given = args.start.iter().any(|s| !s.trim().is_empty());
-    let start = starting_values(&args.start, problem)?;
-    let (result, summary) = run_fit(problem, &start);
-    let derivation = if given {
-        "given on the command line (--start)"
+    let (start, starts, minima) = if given {
+        let start = starting_values(&args.start, problem)?;
+        let rows = problem
+            .model
+            .params
+            .iter()
+            .zip(&start)
+            .map(|(p, v)| StartingValueRow {
+                parameter: p.clone(),
+                value: *v,
+                derivation: "given on the command line (--start)".into(),
+            })
+            .collect();
+        (start, rows, Vec::new())
     } else {
-        // LEAD: replace with each parameter's derivation from inference.
-        "worked out by foothold"
+        searched_starts(problem, &search_options(&args.search.budget))?
     };
-    let starts: Vec<StartingValueRow> = problem
-        .model
-        .params
-        .iter()
-        .zip(&start)
-        .map(|(p, v)| StartingValueRow {
-            parameter: p.clone(),
-            value: *v,
-            derivation: derivation.into(),
-        })
-        .collect();
+    let (result, summary) = run_fit(problem, &start);
     let x = problem.x.first().map(Vec::as_slice).unwrap_or(&[]);
     let features = detect(x, &problem.y);
     let file = std::path::Path::new(&data.source)
@@ -102,8 +189,7 @@ pub fn run_report(
         problem,
         features: &features,
         starts,
-        // LEAD: the ranked minima of the multistart search go here.
-        minima: Vec::new(),
+        minima,
         summary: &summary,
         warnings,
     };
