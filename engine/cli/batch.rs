@@ -5,13 +5,15 @@
 
 use super::args::{FitArgs, Format, InputArgs};
 use super::output::emit;
-use super::prepare::{bind_rows, model_for, run_fit, starting_values};
+use super::prepare::{bind_rows, model_for, run_fit, starting_values_searched};
+use super::rank_cmd::search_options;
 use super::Outcome;
 use crate::data::Dataset;
 use crate::error::Error;
 use crate::fit::problem::Problem;
 use crate::report::fit_table::{format_number, SIGNIFICANT};
 use crate::report::formats::{aligned_table, csv_line, csv_number, to_json, to_yaml, Align};
+use crate::search::SearchOptions;
 use crate::symbolic::Model;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
@@ -161,7 +163,13 @@ pub struct GroupFit {
 }
 
 /// Fits one group; every error becomes a failed row.
-fn fit_group(start: &[String], model: &Model, data: &Dataset, key: String) -> GroupFit {
+fn fit_group(
+    start: &[String],
+    search: &SearchOptions,
+    model: &Model,
+    data: &Dataset,
+    key: String,
+) -> GroupFit {
     let names = &model.params;
     let failed = |message: String| GroupRow {
         group: key.clone(),
@@ -189,8 +197,8 @@ fn fit_group(start: &[String], model: &Model, data: &Dataset, key: String) -> Gr
             }
         }
     };
-    let start = match starting_values(start, &bound.problem) {
-        Ok(s) => s,
+    let start = match starting_values_searched(start, &bound.problem, search) {
+        Ok((s, _)) => s,
         Err(e) => {
             return GroupFit {
                 row: failed(e.to_string()),
@@ -241,6 +249,7 @@ fn fit_group(start: &[String], model: &Model, data: &Dataset, key: String) -> Gr
 /// bar on a terminal unless `quiet`.
 pub fn fit_groups(
     start: &[String],
+    search: &SearchOptions,
     model: &Model,
     data: &Dataset,
     groups: &[Group],
@@ -264,7 +273,13 @@ pub fn fit_groups(
         .par_iter()
         .map(|(key, idx)| {
             let label = format!("{} [{by} = {key}]", data.source);
-            let fit = fit_group(start, model, &subset(data, idx, &label), key.clone());
+            let fit = fit_group(
+                start,
+                search,
+                model,
+                &subset(data, idx, &label),
+                key.clone(),
+            );
             bar.inc(1);
             fit
         })
@@ -320,11 +335,18 @@ pub fn run_batch(
 ) -> Result<Outcome, Error> {
     let by = args.by.clone().unwrap_or_default();
     let (model, groups, warnings) = batch_groups(&args.input, data, &by)?;
-    let rows: Vec<GroupRow> =
-        fit_groups(&args.start, &model, data, &groups, &by, args.output.quiet)
-            .into_iter()
-            .map(|f| f.row)
-            .collect();
+    let rows: Vec<GroupRow> = fit_groups(
+        &args.start,
+        &search_options(&args.search),
+        &model,
+        data,
+        &groups,
+        &by,
+        args.output.quiet,
+    )
+    .into_iter()
+    .map(|f| f.row)
+    .collect();
     if !args.output.quiet {
         for w in &warnings {
             let _ = writeln!(err, "foothold: warning: {w}");

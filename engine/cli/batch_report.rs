@@ -76,7 +76,15 @@ pub fn run_batch_report(
         ));
     }
     let (model, groups, mut warnings) = batch_groups(&args.input, data, &by)?;
-    let fits = fit_groups(&args.start, &model, data, &groups, &by, args.quiet);
+    let fits = fit_groups(
+        &args.start,
+        &super::rank_cmd::search_options(&args.search.budget),
+        &model,
+        data,
+        &groups,
+        &by,
+        args.quiet,
+    );
 
     let x_name = model.vars.first().cloned().unwrap_or_default();
     let y_label = match &model.lhs {
