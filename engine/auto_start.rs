@@ -6,7 +6,8 @@ use crate::error::Error;
 use crate::fit::problem::Problem;
 use crate::infer::{infer, InferOptions, Inference, ScanRange};
 use crate::search::{
-    find_sign_flips, find_symmetries, search, ParamScale, SearchOptions, SearchOutcome, SignFreedom,
+    find_sign_flips, find_signed_swaps, find_symmetries, search, ParamScale, SearchOptions,
+    SearchOutcome, SignFreedom,
 };
 
 /// Converts inference's natural range of a parameter into the search's scale.
@@ -84,6 +85,7 @@ pub fn infer_and_search(
     let symmetries = find_symmetries(&problem.model);
     let mut opts = opts.clone();
     opts.sign_flips = find_sign_flips(&problem.model);
+    opts.signed_swaps = find_signed_swaps(&problem.model);
     let mut outcome = search(
         problem,
         &problem.model.params,

@@ -343,3 +343,50 @@ fn text_labels_with_empty_cells_and_a_text_cell_in_a_used_column() {
     );
     let _ = std::fs::remove_dir_all(&d);
 }
+
+#[test]
+fn four_parameter_logistic_reads_every_curve_the_same_way_round() {
+    // bottom + (top - bottom)/(1 + exp(slope*(mid - x))) gives the same curve
+    // with bottom and top swapped and slope negated. The search treats the two
+    // as one minimum and reports the image with slope ≥ 0, so that across a
+    // batch `top` is always the response at high dose (as the library says).
+    // demo-data/plate_dose_response.csv (invented) rises from about 0 to the
+    // plateau of each compound (74–97 % inhibition).
+    let (code, out, err) = run(&[
+        "fit",
+        "demo-data/plate_dose_response.csv",
+        "--model",
+        "logistic-4",
+        "--x",
+        "log_dose",
+        "--y",
+        "response",
+        "--by",
+        "compound",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let groups = v["groups"].as_array().unwrap();
+    assert_eq!(groups.len(), 6);
+    for g in groups {
+        let est = |n: &str| {
+            g["parameters"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .find(|p| p["name"] == n)
+                .and_then(|p| p["estimate"].as_f64())
+                .unwrap()
+        };
+        let (bottom, top, slope) = (est("bottom"), est("top"), est("slope"));
+        println!(
+            "{}: bottom {bottom:.3} top {top:.3} slope {slope:.3}",
+            g["group"]
+        );
+        assert_eq!(g["status"], "converged", "{g}");
+        assert!(slope > 0.0, "{g}");
+        assert!(top > 60.0 && bottom.abs() < 10.0, "{g}");
+    }
+}

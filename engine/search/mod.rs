@@ -26,7 +26,7 @@ mod tests;
 pub use candidates::{find_symmetries, Candidate, Origin};
 pub use outcome::{Minimum, Run, SearchOutcome};
 pub use scale::{ParamScale, SignFreedom};
-pub use symmetry::find_sign_flips;
+pub use symmetry::{find_sign_flips, find_signed_swaps};
 
 use crate::fit::lm::{LmOptions, StopReason};
 use crate::fit::Residuals;
@@ -61,6 +61,9 @@ pub struct SearchOptions {
     /// Parameter sets whose joint change of sign leaves the model unchanged
     /// (see [`symmetry::find_sign_flips`]): mirror-image minima are merged.
     pub sign_flips: Vec<Vec<usize>>,
+    /// Swaps of two parameters that leave the model unchanged together with a
+    /// change of sign of a third (see [`symmetry::find_signed_swaps`]).
+    pub signed_swaps: Vec<(Vec<usize>, usize)>,
 }
 
 impl Default for SearchOptions {
@@ -75,6 +78,7 @@ impl Default for SearchOptions {
             leg_iterations: 8,
             explore_iterations: 400,
             sign_flips: Vec::new(),
+            signed_swaps: Vec::new(),
         }
     }
 }
@@ -129,6 +133,12 @@ pub fn search(
     let group = symmetry::Symmetries {
         group: symmetry::group(&symmetries, n),
         sign_flips,
+        signed_swaps: opts
+            .signed_swaps
+            .iter()
+            .filter(|(p, k)| p.len() == n && symmetry::is_permutation(p) && *k < n)
+            .cloned()
+            .collect(),
     };
     let cands = candidates::generate(candidates, &scales, &symmetries, opts.starts, opts.seed);
 

@@ -148,6 +148,48 @@ pub fn find_sign_flips(model: &Model) -> Vec<Vec<usize>> {
     out
 }
 
+/// Swaps of two parameters that leave `model.rhs` unchanged only together
+/// with a change of sign of a third, e.g. (bottom, top, slope) in
+/// `bottom + (top - bottom)/(1 + exp(slope*(mid - x)))`: the same curve is
+/// read from either end. Tested numerically as in [`find_symmetries`], for
+/// every pair that is not interchangeable by itself and every third
+/// parameter that cannot change sign by itself. Returned as (permutation,
+/// parameter whose sign changes), in a fixed order.
+pub fn find_signed_swaps(model: &Model) -> Vec<(Vec<usize>, usize)> {
+    let n = model.n_params();
+    let Some(probe) = Probe::new(model, 0x51_65_ED_5A) else {
+        return Vec::new();
+    };
+    let mut out = Vec::new();
+    for i in 0..n {
+        for j in i + 1..n {
+            let perm = swap_pairs(n, &[(i, j)]);
+            if probe.unchanged(|p| apply(&perm, p)) {
+                continue;
+            }
+            for k in (0..n).filter(|&k| k != i && k != j) {
+                let flip_alone = probe.unchanged(|p| {
+                    let mut q = p.to_vec();
+                    q[k] = -q[k];
+                    q
+                });
+                if flip_alone {
+                    continue;
+                }
+                let together = probe.unchanged(|p| {
+                    let mut q = apply(&perm, p);
+                    q[k] = -q[k];
+                    q
+                });
+                if together {
+                    out.push((perm.clone(), k));
+                }
+            }
+        }
+    }
+    out
+}
+
 /// The symmetries of a model as the search uses them: interchangeable
 /// parameters and sign changes that leave the model unchanged.
 #[derive(Debug, Clone, Default)]
@@ -156,13 +198,16 @@ pub struct Symmetries {
     pub group: Vec<Vec<usize>>,
     /// Sign-change sets ([`find_sign_flips`]).
     pub sign_flips: Vec<Vec<usize>>,
+    /// Swaps that need a change of sign ([`find_signed_swaps`]).
+    pub signed_swaps: Vec<(Vec<usize>, usize)>,
 }
 
 impl Symmetries {
     /// One representative of all mirror images of `p`: first each sign-change
     /// set is turned so that its first parameter is not negative (sets applied
-    /// in order), then the lexicographically smallest permutation is taken.
-    /// Returns it with the permutation used (`out[i] = ±p[perm[i]]`).
+    /// in order), then each signed swap is applied where its sign-changing
+    /// parameter is negative, then the lexicographically smallest permutation
+    /// is taken. Returns it with the permutation used (`out[i] = ±p[perm[i]]`).
     pub fn canonical_with(&self, p: &[f64]) -> (Vec<f64>, Vec<usize>) {
         let mut q = p.to_vec();
         for set in &self.sign_flips {
@@ -172,8 +217,25 @@ impl Symmetries {
                 }
             }
         }
-        canonical_with(&self.group, &q)
+        let mut moved: Vec<usize> = (0..q.len()).collect();
+        for (perm, k) in &self.signed_swaps {
+            if perm.len() == q.len() && is_permutation(perm) && q.get(*k).is_some_and(|v| *v < 0.0)
+            {
+                q = apply(perm, &q);
+                q[*k] = -q[*k];
+                moved = apply_index(perm, &moved);
+            }
+        }
+        let (out, g) = canonical_with(&self.group, &q);
+        (out, apply_index(&g, &moved))
     }
+}
+
+/// σ applied to a list of indices: `idx[perm[i]]` in place i.
+fn apply_index(perm: &[usize], idx: &[usize]) -> Vec<usize> {
+    perm.iter()
+        .map(|&k| idx.get(k).copied().unwrap_or(k))
+        .collect()
 }
 
 /// σ(p): the point with `p[perm[i]]` in place i.
@@ -353,6 +415,7 @@ mod tests {
         let s = Symmetries {
             group: vec![],
             sign_flips: vec![vec![0, 1]],
+            ..Default::default()
         };
         assert_eq!(
             s.canonical_with(&[-1.5, -4.0, 450.0]).0,
@@ -375,5 +438,40 @@ mod tests {
         assert_eq!(canonical(&g, &p), vec![2.0, 5.0, 1.3, 0.1]);
         assert!(!is_permutation(&[0, 0]));
         assert_eq!(group(&[vec![0, 0]], 2).len(), 1);
+    }
+
+    #[test]
+    fn a_swap_with_a_change_of_sign_is_found_and_made_canonical() {
+        // Both ends of a logistic step: (bottom, top, slope) -> (top, bottom, -slope).
+        let m = model(
+            "bottom + (top - bottom)/(1 + exp(slope*(mid - x)))",
+            &["x", "y"],
+        );
+        let names = &m.params;
+        let at = |n: &str| names.iter().position(|p| p == n).unwrap();
+        let (b, t, s) = (at("bottom"), at("top"), at("slope"));
+        let found = find_signed_swaps(&m);
+        assert_eq!(found.len(), 1, "{found:?}");
+        let (perm, k) = &found[0];
+        assert_eq!(*k, s);
+        assert_eq!((perm[b], perm[t]), (t, b));
+        // Not a pure swap, and nothing for a model without the mirror.
+        assert!(find_symmetries(&m).is_empty());
+        assert!(find_signed_swaps(&model("a*exp(-k*x) + c", &["x", "y"])).is_empty());
+        // The mirror image with a negative slope is turned round.
+        let sym = Symmetries {
+            signed_swaps: found.clone(),
+            ..Default::default()
+        };
+        let mut p = vec![0.0; 4];
+        p[b] = 95.0;
+        p[t] = 5.0;
+        p[at("mid")] = 1.2;
+        p[s] = -2.5;
+        let (q, moved) = sym.canonical_with(&p);
+        assert_eq!((q[b], q[t], q[s]), (5.0, 95.0, 2.5));
+        assert_eq!((moved[b], moved[t]), (t, b));
+        // Already canonical: unchanged.
+        assert_eq!(sym.canonical_with(&q).0, q);
     }
 }
