@@ -7,7 +7,7 @@ secs="${1:-60}"
 cd "$(dirname "$0")"
 mkdir -p logs
 status=0
-for target in parse_formula differentiate fit_problem; do
+for target in parse_formula differentiate fit_problem read_table; do
     echo "== $target: ${secs}s"
     # Only the stable toolchain is installed: RUSTC_BOOTSTRAP lets it take the
     # nightly-only sanitizer flags cargo-fuzz passes.

@@ -72,3 +72,74 @@ for i, (f, ys, st) in enumerate(fits):
     write("fit_problem", f"seed-{i:03}", fit_seed(f, xs, ys, st))
 # Special cells: NaN, inf and zeros in the data (tag bytes below 16).
 write("fit_problem", "seed-special", b"\x00a*exp(-b*x)\n\x05" + bytes([0, 2, 16, 0, 1, 3, 16, 0, 2, 16, 0, 4, 4, 16, 0, 3, 1, 16, 0, 2, 6, 7]))
+
+# read_table: the whole input is the file's bytes (delimited text, or a workbook).
+TABLES = [
+    b"x,y\n1,2\n3,4.5\n", b"x\ty\n1\t2\n3\t4.5\n", b"x   y\n  1 2\n3\t 4.5  \n",
+    b"hours,mass\n0,0.25\n2,\n4,1.5\n", b"t;y\n1;2\n", b"t,y\n1,2\n3\n", b"t y\n1 2 3\n",
+    b"\xef\xbb\xbf# growth run\n\ntime, od\r\n# mid\n 0 , 0.01 \r\n\n1,0.03\r\n",
+    b"\"time h\",\"a,b\",\"say \"\"hi\"\"\"\n1,\"2\",3\n", b"\"time h\" y\n1 2\n", b"\"x,y\n1,2\n",
+    b"x,y\nNaN,1\n", b"x,y\n1,inf\n", b"x,y\n-Infinity,1\n", b"x,y\n1e999,1\n", b"x,y\n1e-400,5e-324\n",
+    b"x,y\n1.7976931348623157e308,-0.0\n", b"x,y\n0x10,1_000\n", b"x,y\n+1.,.5\n", b"x,y\n1,abc\n",
+    b"x," * 300 + b"z\n" + b"1," * 300 + b"2\n", b"x,,y\n1,2,3\n", b"x,x\n1,2\n", b"1,2\n3,4\n",
+    b"", b"# only\n\n  \n", b"x,y\n\n# nothing\n", b"x\n\"\"\n1\n", b"x,y\n,\n1,\n",
+    b"x,\xe9t\xe9\n1,2\n", b"x,y\n1\x00,2\n", b"x,y\r1,2\r3,4\r", b"x,y\n1,\"2\x0b3\"\n",
+    b"a b\xc2\x85c\n1 2 3\n", b"x,y\n1,\"2\r3\"\n", b"\xce\xb1,\xce\xb2\n1,2\n", b"#x,y\n1,2\n",
+    b"x\n1\n2\n3\n", b"nan,inf\n1,2\n", b"x y\n1\t2\n", b"x\t\ty\n1\t\t2\n", b" , \n1,2\n",
+]
+for i, t in enumerate(TABLES):
+    write("read_table", f"seed-{i:03}", t)
+
+import io, zipfile
+
+def xlsx(rows_xml, sheets=("Data",), stored=True, dimension=None):
+    """A minimal .xlsx: one worksheet part per sheet, all holding `rows_xml`."""
+    buf = io.BytesIO()
+    method = zipfile.ZIP_STORED if stored else zipfile.ZIP_DEFLATED
+    with zipfile.ZipFile(buf, "w", method) as z:
+        ns = 'xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"'
+        rel = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
+        ct = ('<?xml version="1.0" encoding="UTF-8"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types">'
+              '<Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/>'
+              '<Default Extension="xml" ContentType="application/xml"/>'
+              '<Override PartName="/xl/workbook.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet.main+xml"/>')
+        wb = f'<?xml version="1.0" encoding="UTF-8"?><workbook {ns} xmlns:r="{rel}"><sheets>'
+        rels = '<?xml version="1.0" encoding="UTF-8"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">'
+        for n, name in enumerate(sheets, 1):
+            ct += f'<Override PartName="/xl/worksheets/sheet{n}.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.worksheet+xml"/>'
+            wb += f'<sheet name="{name}" sheetId="{n}" r:id="rId{n}"/>'
+            rels += f'<Relationship Id="rId{n}" Type="{rel}/worksheet" Target="worksheets/sheet{n}.xml"/>'
+            dim = f'<dimension ref="{dimension}"/>' if dimension else ""
+            z.writestr(f"xl/worksheets/sheet{n}.xml",
+                       f'<?xml version="1.0" encoding="UTF-8"?><worksheet {ns}>{dim}<sheetData>{rows_xml}</sheetData></worksheet>')
+        z.writestr("[Content_Types].xml", ct + "</Types>")
+        z.writestr("_rels/.rels", '<?xml version="1.0" encoding="UTF-8"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">'
+                   f'<Relationship Id="rId1" Type="{rel}/officeDocument" Target="xl/workbook.xml"/></Relationships>')
+        z.writestr("xl/workbook.xml", wb + "</sheets></workbook>")
+        z.writestr("xl/_rels/workbook.xml.rels", rels + "</Relationships>")
+    return buf.getvalue()
+
+def c(ref, v):
+    try:
+        float(v)
+        return f'<c r="{ref}"><v>{v}</v></c>'
+    except ValueError:
+        return f'<c r="{ref}" t="inlineStr"><is><t>{v}</t></is></c>'
+
+good = ('<row r="1">' + c("A1", "hours") + c("B1", "mass") + '</row>'
+        '<row r="2">' + c("A2", "0") + c("B2", "0.25") + '</row>'
+        '<row r="3">' + c("A3", "2") + '</row>'
+        '<row r="4">' + c("A4", "4") + c("B4", "1.5") + '</row>')
+write("read_table", "seed-xlsx-small", xlsx(good, sheets=("Run 1", "Run 2")))
+write("read_table", "seed-xlsx-deflated", xlsx(good, stored=False))
+write("read_table", "seed-xlsx-text-cell", xlsx('<row r="1">' + c("A1", "x") + c("B1", "y") + '</row><row r="2">' + c("A2", "1") + c("B2", "high") + '</row>'))
+write("read_table", "seed-xlsx-bool-error", xlsx('<row r="1">' + c("A1", "x") + '</row><row r="2"><c r="A2" t="b"><v>1</v></c></row><row r="3"><c r="A3" t="e"><v>#DIV/0!</v></c></row>'))
+write("read_table", "seed-xlsx-dup-names", xlsx('<row r="1">' + c("A1", "x") + c("B1", "x") + '</row><row r="2">' + c("A2", "1") + c("B2", "2") + '</row>'))
+write("read_table", "seed-xlsx-numeric-header", xlsx('<row r="1">' + c("A1", "1") + c("B1", "2") + '</row><row r="2">' + c("A2", "1") + c("B2", "2") + '</row>'))
+write("read_table", "seed-xlsx-empty", xlsx(""))
+# Two cells at opposite corners of the largest sheet: a range of 17 billion cells.
+write("read_table", "seed-xlsx-far-corners", xlsx('<row r="1">' + c("A1", "x") + '</row><row r="1048576">' + c("XFD1048576", "1") + '</row>'))
+write("read_table", "seed-xlsx-big-dimension", xlsx(good, dimension="A1:XFD1048576"))
+write("read_table", "seed-xlsx-newline-name", xlsx('<row r="1">' + c("A1", "x&#10;y") + '</row><row r="2">' + c("A2", "a&#13;b") + '</row>', sheets=("Line&#10;two",)))
+write("read_table", "seed-not-a-zip", b"PK\x03\x04 this is not a zip archive")
+write("read_table", "seed-ole-header", bytes([0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1]) + b"\x00" * 504)

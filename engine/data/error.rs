@@ -1,13 +1,14 @@
 //! What can be wrong with an input table, and where: every message names the
 //! file and, where there is one, the line (or sheet and row) and the column.
 
+use std::borrow::Cow;
 use thiserror::Error;
 
 /// What is wrong with an input table, and where.
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum DataError {
     /// The operating system refused the read.
-    #[error("cannot read {path}: {reason}")]
+    #[error("cannot read {path}: {}", one_line(reason))]
     Io { path: String, reason: String },
     /// No file at that path.
     #[error("{path}: no such file")]
@@ -44,7 +45,8 @@ pub enum DataError {
     },
     /// The same name twice in the header.
     #[error(
-        "{path}, line {line}: column name '{name}' appears twice (columns {first} and {second})"
+        "{path}, line {line}: column name '{}' appears twice (columns {first} and {second})",
+        one_line(name)
     )]
     DuplicateColumn {
         path: String,
@@ -65,7 +67,9 @@ pub enum DataError {
     },
     /// A cell that is not a number.
     #[error(
-        "{path}, line {line}, column '{column}': '{text}' is not a number{}",
+        "{path}, line {line}, column '{}': '{}' is not a number{}",
+        one_line(column),
+        one_line(text),
         semicolon_hint(text)
     )]
     NotANumber {
@@ -75,7 +79,7 @@ pub enum DataError {
         text: String,
     },
     /// A NaN or infinite cell (literal, or a number too large for f64).
-    #[error("{path}, line {line}, column '{column}': '{text}' is not a finite number; leave the cell empty to mark a missing value")]
+    #[error("{path}, line {line}, column '{}': '{}' is not a finite number; leave the cell empty to mark a missing value", one_line(column), one_line(text))]
     NonFinite {
         path: String,
         line: usize,
@@ -86,21 +90,30 @@ pub enum DataError {
     #[error("{path}, line {line}: a quoted cell has no closing quote")]
     UnterminatedQuote { path: String, line: usize },
     /// A column name asked for that the table does not have.
-    #[error("column '{name}' is not in {path} (columns: {available})")]
+    #[error(
+        "column '{}' is not in {path} (columns: {})",
+        one_line(name),
+        one_line(available)
+    )]
     UnknownColumn {
         path: String,
         name: String,
         available: String,
     },
     /// Every row has a missing cell in the columns the model needs.
-    #[error("{path}: no row has values in all of {columns}; every row has an empty cell there")]
+    #[error(
+        "{path}: no row has values in all of {}; every row has an empty cell there",
+        one_line(columns)
+    )]
     NoCompleteRows { path: String, columns: String },
     /// The workbook could not be opened or read.
-    #[error("cannot read workbook {path}: {reason}")]
+    #[error("cannot read workbook {path}: {}", one_line(reason))]
     Workbook { path: String, reason: String },
     /// `--sheet` names no sheet of the workbook.
     #[error(
-        "{path} has no sheet '{sheet}' (sheets: {available}); give a name or a 1-based number"
+        "{path} has no sheet '{}' (sheets: {}); give a name or a 1-based number",
+        one_line(sheet),
+        one_line(available)
     )]
     NoSuchSheet {
         path: String,
@@ -108,13 +121,22 @@ pub enum DataError {
         available: String,
     },
     /// A sheet with no cells.
-    #[error("{path}, sheet '{sheet}' is empty: expected a header row of column names, then rows of numbers")]
+    #[error(
+        "{path}, sheet '{}' is empty: expected a header row of column names, then rows of numbers",
+        one_line(sheet)
+    )]
     EmptySheet { path: String, sheet: String },
     /// A sheet with a header row and no data.
-    #[error("{path}, sheet '{sheet}' has a header row but no data rows")]
+    #[error(
+        "{path}, sheet '{}' has a header row but no data rows",
+        one_line(sheet)
+    )]
     HeaderOnlySheet { path: String, sheet: String },
     /// A header cell of a sheet with no name.
-    #[error("{path}, sheet '{sheet}', row {row}: column {column} of the header has no name")]
+    #[error(
+        "{path}, sheet '{}', row {row}: column {column} of the header has no name",
+        one_line(sheet)
+    )]
     EmptySheetHeaderName {
         path: String,
         sheet: String,
@@ -122,7 +144,7 @@ pub enum DataError {
         column: usize,
     },
     /// The same name twice in a sheet's header row.
-    #[error("{path}, sheet '{sheet}', row {row}: column name '{name}' appears twice (columns {first} and {second})")]
+    #[error("{path}, sheet '{}', row {row}: column name '{}' appears twice (columns {first} and {second})", one_line(sheet), one_line(name))]
     DuplicateSheetColumn {
         path: String,
         sheet: String,
@@ -141,7 +163,7 @@ pub enum DataError {
 
 /// Where a workbook cell that is not a number sits, and what it holds.
 #[derive(Debug, Clone, PartialEq, Error)]
-#[error("{path}, sheet '{sheet}', row {row}, column '{column}': {} '{text}' is not a number{}", kind.what(), kind.hint())]
+#[error("{path}, sheet '{}', row {row}, column '{}': {} '{}' is not a number{}", one_line(sheet), one_line(column), kind.what(), one_line(text), kind.hint())]
 pub struct SheetCellError {
     pub path: String,
     pub sheet: String,
@@ -190,10 +212,64 @@ impl CellKind {
     }
 }
 
+/// Text from the input as it appears in a message: control characters (a lone
+/// carriage return, vertical tab, NEL, ...) and the Unicode line and paragraph
+/// separators are escaped (`\r`, `\u{b}`), so a message stays one line and
+/// cannot move the terminal's cursor.
+fn one_line(text: &str) -> Cow<'_, str> {
+    let unsafe_char = |c: char| c.is_control() || matches!(c, '\u{2028}' | '\u{2029}');
+    if !text.contains(unsafe_char) {
+        return Cow::Borrowed(text);
+    }
+    let mut out = String::with_capacity(text.len() + 8);
+    for c in text.chars() {
+        if unsafe_char(c) {
+            out.extend(c.escape_debug());
+        } else {
+            out.push(c);
+        }
+    }
+    Cow::Owned(out)
+}
+
 fn semicolon_hint(text: &str) -> &'static str {
     if text.contains(';') {
         "; separate cells with commas, tabs or spaces (semicolons are not a separator)"
     } else {
         ""
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn input_text_in_messages_stays_on_one_line() {
+        // Found by the read_table fuzzer: a lone carriage return inside a cell
+        // went into the message as is.
+        let e = crate::data::parse_delimited("x,y\n1,\"2\r3\"\n", "t.csv").unwrap_err();
+        let shown = e.to_string();
+        println!("{shown}");
+        assert_eq!(shown, "t.csv, line 2, column 'y': '2\\r3' is not a number");
+        // The field keeps the cell as it was.
+        assert!(matches!(&e, DataError::NotANumber { text, .. } if text == "2\r3"));
+
+        let e = DataError::DuplicateSheetColumn {
+            path: "b.xlsx".into(),
+            sheet: "Run\n2".into(),
+            row: 1,
+            name: "a\u{2028}b\u{85}\u{b}".into(),
+            first: 1,
+            second: 2,
+        };
+        let shown = e.to_string();
+        println!("{shown}");
+        assert_eq!(
+            shown,
+            "b.xlsx, sheet 'Run\\n2', row 1: column name 'a\\u{2028}b\\u{85}\\u{b}' appears twice (columns 1 and 2)"
+        );
+        // Ordinary text, non-ASCII letters included, is shown unchanged.
+        assert_eq!(one_line("größe µm"), "größe µm");
     }
 }

@@ -111,32 +111,10 @@ fn sheet_option_on_text_is_refused() {
 /// Writes a minimal .xlsx with the given sheets; each sheet is rows of cells,
 /// a cell being `Some(text)` (a number if it parses, else inline text) or `None`.
 fn write_xlsx(name: &str, sheets: &[(&str, Vec<Vec<Option<&str>>>)]) -> TempFile {
-    use zip::write::SimpleFileOptions;
-    let mut buf = std::io::Cursor::new(Vec::new());
-    {
-        let mut z = zip::ZipWriter::new(&mut buf);
-        let o = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
-        let mut ct = String::from(
-            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"><Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/><Default Extension="xml" ContentType="application/xml"/><Override PartName="/xl/workbook.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet.main+xml"/>"#,
-        );
-        let mut wb = String::from(
-            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets>"#,
-        );
-        let mut rels = String::from(
-            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">"#,
-        );
-        for (k, (sheet, rows)) in sheets.iter().enumerate() {
-            let n = k + 1;
-            ct += &format!(
-                r#"<Override PartName="/xl/worksheets/sheet{n}.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.worksheet+xml"/>"#
-            );
-            wb += &format!(r#"<sheet name="{sheet}" sheetId="{n}" r:id="rId{n}"/>"#);
-            rels += &format!(
-                r#"<Relationship Id="rId{n}" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet{n}.xml"/>"#
-            );
-            let mut xml = String::from(
-                r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>"#,
-            );
+    let sheets: Vec<(&str, String)> = sheets
+        .iter()
+        .map(|(sheet, rows)| {
+            let mut xml = String::new();
             for (i, row) in rows.iter().enumerate() {
                 let r = i + 1;
                 xml += &format!(r#"<row r="{r}">"#);
@@ -155,6 +133,41 @@ fn write_xlsx(name: &str, sheets: &[(&str, Vec<Vec<Option<&str>>>)]) -> TempFile
                 }
                 xml += "</row>";
             }
+            (*sheet, xml)
+        })
+        .collect();
+    write_xlsx_xml(name, &sheets)
+}
+
+/// Writes a minimal .xlsx whose sheets hold the given `<sheetData>` contents.
+fn write_xlsx_xml(name: &str, sheets: &[(&str, String)]) -> TempFile {
+    use zip::write::SimpleFileOptions;
+    let mut buf = std::io::Cursor::new(Vec::new());
+    {
+        let mut z = zip::ZipWriter::new(&mut buf);
+        let o = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
+        let mut ct = String::from(
+            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"><Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/><Default Extension="xml" ContentType="application/xml"/><Override PartName="/xl/workbook.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet.main+xml"/>"#,
+        );
+        let mut wb = String::from(
+            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets>"#,
+        );
+        let mut rels = String::from(
+            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">"#,
+        );
+        for (k, (sheet, rows_xml)) in sheets.iter().enumerate() {
+            let n = k + 1;
+            ct += &format!(
+                r#"<Override PartName="/xl/worksheets/sheet{n}.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.worksheet+xml"/>"#
+            );
+            wb += &format!(r#"<sheet name="{sheet}" sheetId="{n}" r:id="rId{n}"/>"#);
+            rels += &format!(
+                r#"<Relationship Id="rId{n}" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet{n}.xml"/>"#
+            );
+            let mut xml = String::from(
+                r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>"#,
+            );
+            xml += rows_xml;
             xml += "</sheetData></worksheet>";
             z.start_file(format!("xl/worksheets/sheet{n}.xml"), o)
                 .unwrap();
@@ -294,4 +307,36 @@ fn broken_workbook_is_a_workbook_error() {
         read(f.path()).unwrap_err(),
         DataError::EmptySheet { .. }
     ));
+}
+
+#[test]
+fn workbook_cells_far_apart_are_refused_before_the_grid_is_built() {
+    // Found by the read_table fuzzer: a 2 kB workbook with cells at A1 and
+    // XFD1048576 made the reader allocate a grid of 17 billion cells (512 GiB)
+    // before the cell limit was checked.
+    let corners = r#"<row r="1"><c r="A1" t="inlineStr"><is><t>x</t></is></c></row><row r="1048576"><c r="XFD1048576"><v>1</v></c></row>"#;
+    let f = write_xlsx_xml("corners.xlsx", &[("Data", corners.to_string())]);
+    let e = read(f.path()).unwrap_err();
+    println!("{e}");
+    assert_eq!(
+        e,
+        DataError::TooManyCells {
+            path: f.path().into(),
+            limit: MAX_CELLS
+        }
+    );
+    // The same cells a few rows apart are read, and the limit counts the whole used range.
+    let near = r#"<row r="1"><c r="A1" t="inlineStr"><is><t>x</t></is></c><c r="B1" t="inlineStr"><is><t>y</t></is></c></row><row r="3"><c r="B3"><v>1</v></c></row>"#;
+    let f = write_xlsx_xml("near.xlsx", &[("Data", near.to_string())]);
+    let d = read(f.path()).unwrap();
+    assert_eq!(d.columns, vec!["x", "y"]);
+    assert!(d.values[0][0].is_nan());
+    assert_eq!(d.values[1], vec![1.0]);
+    for (max_cells, ok) in [(6, true), (5, false)] {
+        let opts = ReadOptions {
+            max_cells,
+            ..ReadOptions::default()
+        };
+        assert_eq!(read_table(f.path(), &opts).is_ok(), ok, "limit {max_cells}");
+    }
 }

@@ -6,7 +6,7 @@
 use super::error::{CellKind, SheetCellError};
 use super::text::TextBuilder;
 use super::{DataError, Dataset, ReadOptions};
-use calamine::{open_workbook_auto, Data, Reader};
+use calamine::{open_workbook_auto, Cell, Data, DataRef, Range, Reader, Sheets};
 
 /// File extensions read as workbooks (compared without regard to case).
 pub const WORKBOOK_EXTENSIONS: &[&str] = &["xlsx", "xlsm", "xlsb", "xls", "ods"];
@@ -41,15 +41,42 @@ pub(crate) fn read_workbook(path: &str, opts: &ReadOptions) -> Result<Dataset, D
                 names.join(", ")
             },
         })?;
-    let range = book
-        .worksheet_range(&sheet)
-        .map_err(|e| werr(e.to_string()))?;
+    let too_many = || DataError::TooManyCells {
+        path: path.to_string(),
+        limit: opts.max_cells,
+    };
+    // calamine sizes a sheet's grid from its outermost cells before we could
+    // check it (two cells at A1 and XFD1048576: 17 billion cells), so the
+    // formats that can be read cell by cell are bounded while reading.
+    let range = match &mut book {
+        Sheets::Xlsx(b) => {
+            let mut cells = b
+                .worksheet_cells_reader(&sheet)
+                .map_err(|e| werr(e.to_string()))?;
+            bounded_range(
+                || cells.next_cell().map_err(|e| e.to_string()),
+                opts.max_cells,
+            )
+        }
+        Sheets::Xlsb(b) => {
+            let mut cells = b
+                .worksheet_cells_reader(&sheet)
+                .map_err(|e| werr(e.to_string()))?;
+            bounded_range(
+                || cells.next_cell().map_err(|e| e.to_string()),
+                opts.max_cells,
+            )
+        }
+        other => other
+            .worksheet_range(&sheet)
+            .map_err(|e| e.to_string())
+            .map(Some),
+    }
+    .map_err(werr)?
+    .ok_or_else(too_many)?;
     let (height, width) = range.get_size();
     if height.saturating_mul(width) > opts.max_cells {
-        return Err(DataError::TooManyCells {
-            path: path.to_string(),
-            limit: opts.max_cells,
-        });
+        return Err(too_many());
     }
     let first_row = range.start().map(|(r, _)| r as usize).unwrap_or(0);
     let rows: Vec<(usize, &[Data])> = range
@@ -59,6 +86,30 @@ pub(crate) fn read_workbook(path: &str, opts: &ReadOptions) -> Result<Dataset, D
         .filter(|(_, r)| !r.iter().all(is_blank))
         .collect();
     table_from_rows(path, &sheet, &rows)
+}
+
+/// The sheet's used range from its non-empty cells, read one at a time;
+/// `Ok(None)` as soon as the cells, or the rectangle they span, pass `max_cells`.
+fn bounded_range<'a>(
+    mut next: impl FnMut() -> Result<Option<Cell<DataRef<'a>>>, String>,
+    max_cells: usize,
+) -> Result<Option<Range<Data>>, String> {
+    let mut cells: Vec<Cell<Data>> = Vec::new();
+    let (mut lo, mut hi) = ((u32::MAX, u32::MAX), (0u32, 0u32));
+    while let Some(cell) = next()? {
+        if matches!(cell.get_value(), DataRef::Empty) {
+            continue;
+        }
+        let (r, c) = cell.get_position();
+        (lo, hi) = ((lo.0.min(r), lo.1.min(c)), (hi.0.max(r), hi.1.max(c)));
+        let height = (hi.0 - lo.0) as usize + 1;
+        let width = (hi.1 - lo.1) as usize + 1;
+        if cells.len() >= max_cells || height.saturating_mul(width) > max_cells {
+            return Ok(None);
+        }
+        cells.push(Cell::new((r, c), Data::from(cell.get_value().clone())));
+    }
+    Ok(Some(Range::from_sparse(cells)))
 }
 
 /// The sheet's name: an exact name first, else a 1-based number; `None` if neither fits.

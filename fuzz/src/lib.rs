@@ -3,8 +3,8 @@
 //! knows when it is itself reliable.
 //!
 //! Targets live in `fuzz_targets/`; each one is a thin `fuzz_target!` around a
-//! `check_*` function here or in the target file. A future `read_table`
-//! target (data reader) only needs a new file there and a `[[bin]]` entry.
+//! `check_*` function here or in the target file. `read_table` (the data
+//! reader) needs none of these helpers: its input is the file's bytes.
 
 use arbitrary::{Result, Unstructured};
 use foothold::symbolic::expr::{BinOp, Expr, Func};
