@@ -340,3 +340,16 @@ fn workbook_cells_far_apart_are_refused_before_the_grid_is_built() {
         assert_eq!(read_table(f.path(), &opts).is_ok(), ok, "limit {max_cells}");
     }
 }
+
+#[test]
+fn open_document_spreadsheets_are_refused_with_the_way_out() {
+    // Any bytes: the extension alone decides, before the library sees the file.
+    let f = TempFile::new("plate.ODS", b"PK\x03\x04 not really a spreadsheet");
+    let e = read(f.path()).unwrap_err();
+    assert!(matches!(e, DataError::OdsRefused { .. }), "{e:?}");
+    let msg = e.to_string();
+    assert!(
+        msg.contains(f.path()) && msg.contains("save the sheet as .xlsx or CSV"),
+        "{msg}"
+    );
+}

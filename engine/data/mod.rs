@@ -1,6 +1,6 @@
 //! Reading tables into named numeric columns: delimited text (comma, tab or
 //! runs of whitespace) with a header, and spreadsheet workbooks (.xlsx, .xls,
-//! .xlsm, .xlsb, .ods). Empty cells are *missing* (NaN in [`Dataset::values`]);
+//! .xlsm, .xlsb; .ods is refused). Empty cells are *missing* (NaN in [`Dataset::values`]);
 //! the model decides which columns matter and [`Dataset::select`] drops the
 //! incomplete rows. A column with cells that are not numbers is kept as text
 //! (group labels for `--by`); the error naming its first such cell is raised
@@ -106,6 +106,11 @@ pub fn read_table(path: &str, opts: &ReadOptions) -> Result<Dataset, DataError> 
         return delimited::parse_delimited_limited(&text, "standard input", opts.max_cells);
     }
     limits::check_file(path, opts.max_bytes)?;
+    if workbook::is_ods_path(path) {
+        return Err(DataError::OdsRefused {
+            path: path.to_string(),
+        });
+    }
     if workbook::is_workbook_path(path) {
         return workbook::read_workbook(path, opts);
     }

@@ -1,4 +1,4 @@
-//! Spreadsheet workbooks (.xlsx, .xlsm, .xlsb, .xls, .ods) through the
+//! Spreadsheet workbooks (.xlsx, .xlsm, .xlsb, .xls) through the
 //! `calamine` crate: the first non-empty row of the chosen sheet is the
 //! header; empty cells are missing (NaN); a column with cells that are not
 //! numbers is also kept as text, and refused only when a model uses it.
@@ -9,7 +9,15 @@ use super::{DataError, Dataset, ReadOptions};
 use calamine::{open_workbook_auto, Cell, Data, DataRef, Range, Reader, Sheets};
 
 /// File extensions read as workbooks (compared without regard to case).
-pub const WORKBOOK_EXTENSIONS: &[&str] = &["xlsx", "xlsm", "xlsb", "xls", "ods"];
+pub const WORKBOOK_EXTENSIONS: &[&str] = &["xlsx", "xlsm", "xlsb", "xls"];
+
+/// True when the path names an OpenDocument spreadsheet (refused: see [`DataError::OdsRefused`]).
+pub(crate) fn is_ods_path(path: &str) -> bool {
+    std::path::Path::new(path)
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("ods"))
+}
 
 /// True when the path's extension names a workbook format.
 pub(crate) fn is_workbook_path(path: &str) -> bool {
@@ -274,7 +282,8 @@ mod tests {
     #[test]
     fn workbook_extensions() {
         assert!(is_workbook_path("a/b.xlsx"));
-        assert!(is_workbook_path("b.ODS"));
+        assert!(is_workbook_path("b.XLS"));
+        assert!(!is_workbook_path("b.ods") && is_ods_path("b.ODS"));
         assert!(!is_workbook_path("b.csv"));
         assert!(!is_workbook_path("xlsx"));
     }

@@ -222,7 +222,7 @@ fn check_text(data: &[u8]) {
 /// Workbook bytes (zip or compound file) as each workbook format.
 fn check_workbook(data: &[u8]) {
     let names: &[&str] = if data.starts_with(b"PK") {
-        &["in.xlsx", "in.xlsb", "in.ods"]
+        &["in.xlsx", "in.xlsb"]
     } else if data.starts_with(&[0xd0, 0xcf, 0x11, 0xe0]) {
         &["in.xls"]
     } else {
