@@ -168,6 +168,13 @@ fn matrix() -> Vec<Case> {
             &["cannot read workbook", ".xlsx"],
         ),
         fit(
+            "OpenDocument spreadsheet (refused: repeat counts can exhaust memory)",
+            b"PK\x03\x04",
+            "a*x",
+            &[],
+            &["{file}", ".ods", "save the sheet as .xlsx or CSV"],
+        ),
+        fit(
             "header only",
             b"x,y\n",
             "a*x",
@@ -869,7 +876,9 @@ fn every_bad_input_is_refused_clearly() {
     for (i, c) in cases.iter().enumerate() {
         let dir = root.join(format!("case{i:02}"));
         std::fs::create_dir_all(&dir).unwrap();
-        let ext = if c.name.contains("workbook") {
+        let ext = if c.name.contains("OpenDocument") {
+            "ods"
+        } else if c.name.contains("workbook") {
             "xlsx"
         } else {
             "csv"
