@@ -76,7 +76,7 @@ impl Default for SearchOptions {
             lm: LmOptions::default(),
             batch: 8,
             leg_iterations: 8,
-            explore_iterations: 400,
+            explore_iterations: 200,
             sign_flips: Vec::new(),
             signed_swaps: Vec::new(),
         }
