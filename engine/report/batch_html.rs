@@ -2,7 +2,7 @@
 //! data, one summary row per group, every group on one overlay chart, a grid
 //! of per-group panels, warnings and the caution. Inline CSS and SVG only.
 
-use super::html::{escape_html, facts, figure, num, section, CAUTION, CSS};
+use super::html::{escape_html, facts, figure, num, page_start, section, CAUTION};
 use std::fmt::Write as _;
 
 /// One group's line of the summary table.
@@ -62,28 +62,12 @@ pub const BATCH_SECTIONS: [&str; 7] = [
 
 /// Renders the batch page as one self-contained HTML5 document.
 pub fn render_batch_report(input: &BatchReportInput) -> String {
-    let mut h = String::with_capacity(64 * 1024 + input.overlay_svg.len() + input.grid_svg.len());
-    let title = if input.title.is_empty() {
-        "Batch fit report".to_string()
-    } else {
-        input.title.clone()
-    };
-    h.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
-    h.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
-    let _ = writeln!(h, "<title>{}</title>", escape_html(&title));
-    let _ = writeln!(h, "<style>{CSS}</style>\n</head>\n<body>\n<main>");
-    h.push_str("<header>\n");
-    let _ = writeln!(h, "<h1>{}</h1>", escape_html(&title));
-    if !input.date.is_empty() {
-        let _ = writeln!(h, "<p class=\"meta\">{}</p>", escape_html(&input.date));
-    }
-    h.push_str("</header>\n");
-
-    section(&mut h, "Model");
-    let _ = writeln!(
-        h,
-        "<code class=\"formula\">{}</code>",
-        escape_html(&input.model)
+    let mut h = page_start(
+        64 * 1024 + input.overlay_svg.len() + input.grid_svg.len(),
+        &input.title,
+        "Batch fit report",
+        &input.date,
+        &input.model,
     );
 
     section(&mut h, "Data");

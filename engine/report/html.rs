@@ -146,7 +146,7 @@ pub(crate) fn num(v: f64, sig: usize) -> String {
 }
 
 /// Inline stylesheet: readable typography, quiet tables, print-friendly.
-pub(crate) const CSS: &str = r#"
+const CSS: &str = r#"
 :root { --ink: #1f2328; --muted: #59636e; --rule: #d0d7de; --band: #f6f8fa; --accent: #0072b2; --warn: #d55e00; }
 * { box-sizing: border-box; }
 body { margin: 0; color: var(--ink); background: #fff;
@@ -182,31 +182,40 @@ ul.warnings li { margin: .2rem 0; }
 }
 "#;
 
-/// Renders the whole report as one self-contained HTML5 page.
-pub fn render_report(input: &ReportInput) -> String {
-    let mut h = String::with_capacity(64 * 1024 + input.survey_svg.len() + input.fit_svg.len());
-    let title = if input.title.is_empty() {
-        "Fit report".to_string()
-    } else {
-        input.title.clone()
-    };
+/// Starts a page: doctype, head with the inline style, the title (or
+/// `fallback` when empty) and date as header, and the Model section.
+pub(crate) fn page_start(
+    capacity: usize,
+    title: &str,
+    fallback: &str,
+    date: &str,
+    model: &str,
+) -> String {
+    let mut h = String::with_capacity(capacity);
+    let title = if title.is_empty() { fallback } else { title };
     h.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
     h.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
-    let _ = writeln!(h, "<title>{}</title>", escape_html(&title));
+    let _ = writeln!(h, "<title>{}</title>", escape_html(title));
     let _ = writeln!(h, "<style>{CSS}</style>\n</head>\n<body>\n<main>");
-
     h.push_str("<header>\n");
-    let _ = writeln!(h, "<h1>{}</h1>", escape_html(&title));
-    if !input.date.is_empty() {
-        let _ = writeln!(h, "<p class=\"meta\">{}</p>", escape_html(&input.date));
+    let _ = writeln!(h, "<h1>{}</h1>", escape_html(title));
+    if !date.is_empty() {
+        let _ = writeln!(h, "<p class=\"meta\">{}</p>", escape_html(date));
     }
     h.push_str("</header>\n");
-
     section(&mut h, "Model");
-    let _ = writeln!(
-        h,
-        "<code class=\"formula\">{}</code>",
-        escape_html(&input.model)
+    let _ = writeln!(h, "<code class=\"formula\">{}</code>", escape_html(model));
+    h
+}
+
+/// Renders the whole report as one self-contained HTML5 page.
+pub fn render_report(input: &ReportInput) -> String {
+    let mut h = page_start(
+        64 * 1024 + input.survey_svg.len() + input.fit_svg.len(),
+        &input.title,
+        "Fit report",
+        &input.date,
+        &input.model,
     );
 
     section(&mut h, "Data");
