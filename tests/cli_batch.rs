@@ -200,16 +200,13 @@ fn bad_group_options_exit_two() {
     let _ = std::fs::remove_dir_all(&d);
 }
 
-#[test]
-fn text_labels_and_no_starts_fit_every_compound() {
-    // demo-data/plate_dose_response.csv: six compounds with text labels,
-    // generated with (asym, xmid, r) per compound (demo-data/README.md);
-    // no --start: inference and the multistart search give every group its starts.
-    let (code, out, err) = run(&[
+/// `fit --by compound` on the plate demo (invented) with a library model, no starts.
+fn plate_fit(model: &str, format: &str) -> (i32, String, String) {
+    run(&[
         "fit",
         "demo-data/plate_dose_response.csv",
         "--model",
-        "logistic-3",
+        model,
         "--x",
         "log_dose",
         "--y",
@@ -217,8 +214,16 @@ fn text_labels_and_no_starts_fit_every_compound() {
         "--by",
         "compound",
         "--format",
-        "json",
-    ]);
+        format,
+    ])
+}
+
+#[test]
+fn text_labels_and_no_starts_fit_every_compound() {
+    // demo-data/plate_dose_response.csv: six compounds with text labels,
+    // generated with (asym, xmid, r) per compound (demo-data/README.md);
+    // no --start: inference and the multistart search give every group its starts.
+    let (code, out, err) = plate_fit("logistic-3", "json");
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     let groups = v["groups"].as_array().unwrap();
@@ -262,18 +267,7 @@ fn text_labels_and_no_starts_fit_every_compound() {
         );
     }
     // The table prints the text labels in the group column.
-    let (code, table, _) = run(&[
-        "fit",
-        "demo-data/plate_dose_response.csv",
-        "--model",
-        "logistic-3",
-        "--x",
-        "log_dose",
-        "--y",
-        "response",
-        "--by",
-        "compound",
-    ]);
+    let (code, table, _) = plate_fit("logistic-3", "table");
     assert_eq!(code, 0);
     assert!(table.contains("compound  status"), "{table}");
     assert!(
@@ -352,20 +346,7 @@ fn four_parameter_logistic_reads_every_curve_the_same_way_round() {
     // batch `top` is always the response at high dose (as the library says).
     // demo-data/plate_dose_response.csv (invented) rises from about 0 to the
     // plateau of each compound (74–97 % inhibition).
-    let (code, out, err) = run(&[
-        "fit",
-        "demo-data/plate_dose_response.csv",
-        "--model",
-        "logistic-4",
-        "--x",
-        "log_dose",
-        "--y",
-        "response",
-        "--by",
-        "compound",
-        "--format",
-        "json",
-    ]);
+    let (code, out, err) = plate_fit("logistic-4", "json");
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     let groups = v["groups"].as_array().unwrap();
