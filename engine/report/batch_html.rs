@@ -2,7 +2,7 @@
 //! data, one summary row per group, every group on one overlay chart, a grid
 //! of per-group panels, warnings and the caution. Inline CSS and SVG only.
 
-use super::html::{escape_html, facts, figure, num, page_start, section, CAUTION};
+use super::html::{escape_html, facts, figure, num, page_end, page_start, section};
 use std::fmt::Write as _;
 
 /// One group's line of the summary table.
@@ -93,20 +93,7 @@ pub fn render_batch_report(input: &BatchReportInput) -> String {
         figure(&mut h, &input.grid_svg, &input.grid_caption);
     }
 
-    section(&mut h, "Warnings");
-    if input.warnings.is_empty() {
-        h.push_str("<p class=\"empty\">No warnings.</p>\n");
-    } else {
-        h.push_str("<ul class=\"warnings\">\n");
-        for w in &input.warnings {
-            let _ = writeln!(h, "<li>{}</li>", escape_html(w));
-        }
-        h.push_str("</ul>\n");
-    }
-
-    section(&mut h, "Caution");
-    let _ = writeln!(h, "<p class=\"caution\">{}</p>", escape_html(CAUTION));
-    h.push_str("</main>\n</body>\n</html>\n");
+    page_end(&mut h, &input.warnings);
     h
 }
 
@@ -177,6 +164,7 @@ fn group_table(h: &mut String, input: &BatchReportInput) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::report::html::CAUTION;
     use crate::report::plot::{group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay};
 
     fn demo() -> BatchReportInput {

@@ -248,22 +248,25 @@ pub fn render_report(input: &ReportInput) -> String {
         "Data with the starting curve (dashed) and the fitted curve; residuals against x and against fitted values.",
     );
 
-    section(&mut h, "Warnings");
-    if input.warnings.is_empty() {
+    page_end(&mut h, &input.warnings);
+    h
+}
+
+/// Ends a page: the Warnings and Caution sections and the closing tags.
+pub(crate) fn page_end(h: &mut String, warnings: &[String]) {
+    section(h, "Warnings");
+    if warnings.is_empty() {
         h.push_str("<p class=\"empty\">No warnings.</p>\n");
     } else {
         h.push_str("<ul class=\"warnings\">\n");
-        for w in &input.warnings {
+        for w in warnings {
             let _ = writeln!(h, "<li>{}</li>", escape_html(w));
         }
         h.push_str("</ul>\n");
     }
-
-    section(&mut h, "Caution");
+    section(h, "Caution");
     let _ = writeln!(h, "<p class=\"caution\">{}</p>", escape_html(CAUTION));
-
     h.push_str("</main>\n</body>\n</html>\n");
-    h
 }
 
 pub(crate) fn section(h: &mut String, heading: &str) {
