@@ -23,13 +23,17 @@ pub fn parse_delimited(text: &str, source: &str) -> Result<Dataset, DataError> {
 
 /// The lines after the header that hold data: (1-based line number, text).
 fn data_lines(text: &str) -> impl Iterator<Item = (usize, &str)> {
-    text.lines()
-        .enumerate()
-        .map(|(i, l)| (i + 1, l))
-        .filter(|(_, l)| {
-            let t = l.trim();
-            !t.is_empty() && !t.starts_with('#')
-        })
+    // Files from old spreadsheet exports end lines with a carriage return alone.
+    let cr_only = text.contains('\r') && !text.contains('\n');
+    let lines: Box<dyn Iterator<Item = &str>> = if cr_only {
+        Box::new(text.split('\r'))
+    } else {
+        Box::new(text.lines())
+    };
+    lines.enumerate().map(|(i, l)| (i + 1, l)).filter(|(_, l)| {
+        let t = l.trim();
+        !t.is_empty() && !t.starts_with('#')
+    })
 }
 
 /// The error for a cell that is not a finite number.
@@ -292,6 +296,16 @@ pub(crate) fn split_cells(line: &str, sep: Separator) -> Option<Vec<String>> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn lines_ended_by_a_carriage_return_alone() {
+        // Found by the read_table fuzzer: read as one header line before.
+        let d = parse_delimited("x,y\r1,2\r3,4\r", "mac.csv").unwrap();
+        assert_eq!(d.columns, vec!["x", "y"]);
+        assert_eq!(d.values, vec![vec![1.0, 3.0], vec![2.0, 4.0]]);
+        let e = parse_delimited("x,y\r1,2\r3,4,5\r", "mac.csv").unwrap_err();
+        assert!(e.to_string().contains("line 3"), "{e}");
+    }
 
     fn parse(text: &str) -> Result<Dataset, DataError> {
         parse_delimited(text, "t.csv")
