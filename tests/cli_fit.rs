@@ -165,3 +165,34 @@ fn search_budget_and_seed_of_a_fit_without_starts() {
     assert_eq!(more["candidates_tried"].as_u64(), Some(24));
     assert!((estimate(&more, "k") - estimate(&json, "k")).abs() < 1e-9);
 }
+
+#[test]
+fn a_constant_response_fitted_from_given_starts_is_flagged() {
+    // Without --start a constant response is refused (bad-input matrix); with
+    // starts the fit runs (it is exact) and says its standard errors mean nothing.
+    let p = scratch_file("constant", "x,y\n1,5\n2,5\n3,5\n4,5\n");
+    let (code, out, err) = run(&[
+        "fit",
+        p.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--start",
+        "a=5,k=0.1",
+        "--format",
+        "json",
+    ]);
+    let _ = std::fs::remove_dir_all(p.parent().unwrap());
+    assert_eq!(code, 0, "{err}");
+    let json: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert!((estimate(&json, "a") - 5.0).abs() < 1e-9, "{out}");
+    let warned = json["warnings"].as_array().unwrap().iter().any(|w| {
+        w.as_str()
+            .unwrap_or("")
+            .contains("'y' is constant (5 in all 4 rows)")
+    });
+    assert!(warned, "{out}");
+    assert!(
+        err.contains("foothold: warning: the response 'y' is constant"),
+        "{err}"
+    );
+}

@@ -81,6 +81,18 @@ pub struct Bound {
     pub context: FitContext,
 }
 
+/// A warning when every response value is the same: a fit then has nothing
+/// to explain, and its standard errors (zero or undefined) say nothing.
+fn constant_response_warning(y: &[f64], response: &str) -> Option<String> {
+    let first = *y.first()?;
+    (y.len() >= 2 && y.iter().all(|v| *v == first)).then(|| {
+        format!(
+            "the response '{response}' is constant ({first} in all {} rows): the fit has nothing to explain and its standard errors mean nothing",
+            y.len()
+        )
+    })
+}
+
 /// Keeps the rows with every needed cell present and binds the problem.
 pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
     let mut needed: Vec<&str> = model.vars.iter().map(|s| s.as_str()).collect();
@@ -95,7 +107,7 @@ pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
             needed.join(", ")
         ));
     }
-    let context = FitContext {
+    let mut context = FitContext {
         model: model.text.clone(),
         data: data.source.clone(),
         response: model.response.clone(),
@@ -106,6 +118,9 @@ pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
     // Bound to the whole table (the problem drops the same incomplete rows
     // itself) so that a row named in an error is the row of the data as given.
     let problem = Problem::new(model, data)?;
+    if let Some(w) = constant_response_warning(&problem.y, &context.response) {
+        context.warnings.push(w);
+    }
     Ok(Bound { problem, context })
 }
 
