@@ -75,6 +75,23 @@ fn verbose_adds_counts_stop_reason_and_timings_on_stderr_only() {
     assert!(r_err.contains("search: 20 starts tried"), "{r_err}");
     assert!(r_err.contains("stopped: every start tried"), "{r_err}");
     assert!(r_err.contains(" ms"), "{r_err}");
+
+    // A batch counts its groups by how they ended.
+    let (code, _, b_err) = run(&[
+        "fit",
+        "demo-data/creep_specimens.csv",
+        "--model",
+        "strain = e0 + a*hours^m",
+        "--by",
+        "specimen",
+        "--verbose",
+    ]);
+    assert_eq!(code, 0, "{b_err}");
+    println!("{b_err}");
+    assert!(
+        b_err.contains("batch: 3 groups by specimen: 3 converged, 0 not converged, 0 failed;"),
+        "{b_err}"
+    );
 }
 
 #[test]

@@ -335,6 +335,7 @@ pub fn run_batch(
 ) -> Result<Outcome, Error> {
     let by = args.by.clone().unwrap_or_default();
     let (model, groups, warnings) = batch_groups(&args.input, data, &by)?;
+    let clock = std::time::Instant::now();
     let rows: Vec<GroupRow> = fit_groups(
         &args.start,
         &search_options(&args.search),
@@ -347,6 +348,18 @@ pub fn run_batch(
     .into_iter()
     .map(|f| f.row)
     .collect();
+    if args.output.verbose {
+        let count = |s: GroupStatus| rows.iter().filter(|r| r.status == s).count();
+        let _ = writeln!(
+            err,
+            "foothold: batch: {} groups by {by}: {} converged, {} not converged, {} failed; {:.1} ms",
+            rows.len(),
+            count(GroupStatus::Converged),
+            count(GroupStatus::NotConverged),
+            count(GroupStatus::Failed),
+            clock.elapsed().as_secs_f64() * 1e3
+        );
+    }
     if !args.output.quiet {
         for w in &warnings {
             let _ = writeln!(err, "foothold: warning: {w}");
