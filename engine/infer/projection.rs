@@ -22,6 +22,8 @@ pub struct Projector<'a> {
     tape: Tape,
     /// Rows.
     n: usize,
+    /// The data columns, as the tape takes them.
+    cols: Vec<&'a [f64]>,
 }
 
 impl<'a> Projector<'a> {
@@ -36,28 +38,24 @@ impl<'a> Projector<'a> {
             sep,
             tape,
             n: problem.y.len(),
+            cols: problem.columns(),
         }
     }
 
     /// Evaluates the offset and the basis columns at the nonlinear values in
-    /// `p` (one buffer: offset, then the m columns, each n long) and returns it
-    /// with the target y − offset of the linear solve.
-    fn basis_and_target(&self, p: &[f64]) -> (Vec<f64>, Vec<f64>) {
+    /// `p` into one buffer (offset, then the m columns, each n long) and turns
+    /// the offset into the target y − offset of the linear solve, in place.
+    fn target_and_basis(&self, p: &[f64]) -> Vec<f64> {
         let n = self.n;
         let mut buf = vec![0.0; n * (self.sep.linear.len() + 1)];
         {
-            let cols = self.problem.columns();
             let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
-            self.tape.eval(p, &cols, &mut outs);
+            self.tape.eval(p, &self.cols, &mut outs);
         }
-        let b = self
-            .problem
-            .y
-            .iter()
-            .zip(&buf[..n])
-            .map(|(y, o)| y - o)
-            .collect();
-        (buf, b)
+        for (o, y) in buf[..n].iter_mut().zip(&self.problem.y) {
+            *o = y - *o;
+        }
+        buf
     }
 
     /// Number of rows.
@@ -86,12 +84,12 @@ impl<'a> Projector<'a> {
     /// (false when the model is not finite there).
     pub fn residuals_into(&self, p: &[f64], r: &mut [f64]) -> bool {
         let (n, m) = (self.n, self.sep.linear.len());
-        let (buf, b) = self.basis_and_target(p);
-        let g = &buf[n..];
+        let buf = self.target_and_basis(p);
+        let (b, g) = buf.split_at(n);
         let coef = if m == 0 {
             Vec::new()
         } else {
-            match lstsq(g, n, m, &b) {
+            match lstsq(g, n, m, b) {
                 Some(s) => s.coef,
                 None => return false,
             }
@@ -109,13 +107,13 @@ impl<'a> Projector<'a> {
     /// The linear coefficients and the residual sum of squares, without writing.
     pub fn solve(&self, p: &[f64]) -> Option<(Vec<f64>, f64)> {
         let (n, m) = (self.n, self.sep.linear.len());
-        let (buf, b) = self.basis_and_target(p);
-        let g = &buf[n..];
+        let buf = self.target_and_basis(p);
+        let (b, g) = buf.split_at(n);
         if m == 0 {
             let ssr: f64 = b.iter().map(|v| v * v).sum();
             return ssr.is_finite().then_some((Vec::new(), ssr));
         }
-        let s = lstsq(g, n, m, &b)?;
+        let s = lstsq(g, n, m, b)?;
         s.ssr.is_finite().then_some((s.coef, s.ssr))
     }
 
@@ -123,12 +121,12 @@ impl<'a> Projector<'a> {
     /// points; ∞ when the model is not finite there).
     pub fn scan_ssr(&self, p: &[f64]) -> f64 {
         let (n, m) = (self.n, self.sep.linear.len());
-        let (buf, b) = self.basis_and_target(p);
-        let g = &buf[n..];
+        let buf = self.target_and_basis(p);
+        let (b, g) = buf.split_at(n);
         let s = if m == 0 {
             Some(b.iter().map(|v| v * v).sum::<f64>())
         } else {
-            lstsq_ssr(g, n, m, &b)
+            lstsq_ssr(g, n, m, b)
         };
         match s {
             Some(v) if v.is_finite() => v,
