@@ -132,6 +132,9 @@ pub fn starting_values(items: &[String], problem: &Problem) -> Result<Vec<f64>, 
     parse_starts(items, &problem.model.params).map_err(|e| Error::Usage(e.to_string()))
 }
 
+/// Starting values and, when the search ran, (local fits tried, distinct minima found).
+pub type StartsSearched = (Vec<f64>, Option<(usize, usize)>);
+
 /// As [`starting_values`] with the search's budget and seed from `opts`,
 /// also saying how the search went when it ran: (local fits tried, distinct
 /// minima found).
@@ -139,7 +142,7 @@ pub fn starting_values_searched(
     items: &[String],
     problem: &Problem,
     opts: &crate::search::SearchOptions,
-) -> Result<(Vec<f64>, Option<(usize, usize)>), Error> {
+) -> Result<StartsSearched, Error> {
     if items.iter().all(|s| s.trim().is_empty()) {
         let (start, counts) = crate::auto_start::starts_with_options(problem, opts)?;
         return Ok((start, Some(counts)));

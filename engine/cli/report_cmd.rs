@@ -52,12 +52,12 @@ fn civil_from_days(z: i64) -> (i64, u32, u32) {
 /// Minima listed in the report's ranking.
 const REPORT_MINIMA: usize = 10;
 
-/// Starts found by inference and the multistart search: the start the fit
-/// uses, one row per parameter saying how it was earned, and the ranked minima.
-fn searched_starts(
-    problem: &Problem,
-    opts: &SearchOptions,
-) -> Result<(Vec<f64>, Vec<StartingValueRow>, Vec<MinimumRow>), Error> {
+/// The start a fit uses, one row per parameter saying how it was earned, and
+/// the ranked minima of the search.
+type SearchedStarts = (Vec<f64>, Vec<StartingValueRow>, Vec<MinimumRow>);
+
+/// Starts found by inference and the multistart search ([`SearchedStarts`]).
+fn searched_starts(problem: &Problem, opts: &SearchOptions) -> Result<SearchedStarts, Error> {
     let (inf, outcome) = infer_and_search(problem, opts)?;
     let (start, rank) = best_start(&inf, &outcome);
     let names = &problem.model.params;
