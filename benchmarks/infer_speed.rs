@@ -16,7 +16,12 @@ fn main() {
     }
     let mut worst: (f64, &str) = (0.0, "");
     let mut total = 0.0;
+    // FOOTHOLD_ONLY=<name> times one problem (for profiling).
+    let only = std::env::var("FOOTHOLD_ONLY").ok();
     for name in strd::PROBLEMS {
+        if only.as_deref().is_some_and(|o| o != name) {
+            continue;
+        }
         let Some(p) = strd::load(name) else {
             println!("{name}: cannot read");
             continue;

@@ -22,18 +22,23 @@ pub struct Period {
 }
 
 /// Normalised Lomb–Scargle power at angular frequency ω of zero-mean y at x.
-fn ls_power(x: &[f64], y: &[f64], var: f64, omega: f64) -> f64 {
+/// One sine and cosine per point (into `trig`, a scratch buffer): the double
+/// angle gives the offset τ, the angle difference the shifted terms.
+fn ls_power(x: &[f64], y: &[f64], var: f64, omega: f64, trig: &mut Vec<(f64, f64)>) -> f64 {
+    trig.clear();
+    trig.extend(x.iter().map(|&t| (omega * t).sin_cos()));
     let (mut s2, mut c2) = (0.0, 0.0);
-    for &t in x {
-        let a = 2.0 * omega * t;
-        s2 += a.sin();
-        c2 += a.cos();
+    for &(s, c) in trig.iter() {
+        s2 += 2.0 * s * c;
+        c2 += (c - s) * (c + s);
     }
     let tau = s2.atan2(c2) / (2.0 * omega);
+    let (st, ct) = (omega * tau).sin_cos();
     let (mut yc, mut ys, mut cc, mut ss) = (0.0, 0.0, 0.0, 0.0);
-    for (&t, &v) in x.iter().zip(y) {
-        let a = omega * (t - tau);
-        let (s, c) = a.sin_cos();
+    for (&(s1, c1), &v) in trig.iter().zip(y) {
+        // sin and cos of ω(t − τ)
+        let s = s1 * ct - c1 * st;
+        let c = c1 * ct + s1 * st;
         yc += v * c;
         ys += v * s;
         cc += c * c;
@@ -77,10 +82,11 @@ pub fn periodogram(x: &[f64], y: &[f64]) -> Vec<(f64, f64)> {
     let f_hi = 0.5 * n as f64;
     let count = (((f_hi - 1.0) * oversample) as usize).clamp(1, 8000);
     let step = (f_hi - 1.0).max(0.0) / count as f64;
+    let mut trig = Vec::with_capacity(n);
     (0..=count)
         .map(|k| {
             let f = 1.0 + k as f64 * step;
-            let p = ls_power(&xs, &r, var, 2.0 * std::f64::consts::PI * f);
+            let p = ls_power(&xs, &r, var, 2.0 * std::f64::consts::PI * f, &mut trig);
             (f / span, p)
         })
         .collect()
