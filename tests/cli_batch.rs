@@ -218,15 +218,20 @@ fn plate_fit(model: &str, format: &str) -> (i32, String, String) {
     ])
 }
 
+/// The `groups` of the plate demo batch as JSON (the run must succeed).
+fn plate_groups(model: &str) -> Vec<serde_json::Value> {
+    let (code, out, err) = plate_fit(model, "json");
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    v["groups"].as_array().unwrap().clone()
+}
+
 #[test]
 fn text_labels_and_no_starts_fit_every_compound() {
     // demo-data/plate_dose_response.csv: six compounds with text labels,
     // generated with (asym, xmid, r) per compound (demo-data/README.md);
     // no --start: inference and the multistart search give every group its starts.
-    let (code, out, err) = plate_fit("logistic-3", "json");
-    assert_eq!(code, 0, "{err}");
-    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
-    let groups = v["groups"].as_array().unwrap();
+    let groups = plate_groups("logistic-3");
     let want = [
         ("KX-101", 94.0, -0.40, 2.6),
         ("KX-102", 88.0, 0.35, 1.9),
@@ -346,10 +351,7 @@ fn four_parameter_logistic_reads_every_curve_the_same_way_round() {
     // batch `top` is always the response at high dose (as the library says).
     // demo-data/plate_dose_response.csv (invented) rises from about 0 to the
     // plateau of each compound (74–97 % inhibition).
-    let (code, out, err) = plate_fit("logistic-4", "json");
-    assert_eq!(code, 0, "{err}");
-    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
-    let groups = v["groups"].as_array().unwrap();
+    let groups = plate_groups("logistic-4");
     assert_eq!(groups.len(), 6);
     for g in groups {
         let est = |n: &str| {
