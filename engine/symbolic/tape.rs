@@ -18,6 +18,11 @@ use std::collections::HashMap;
 /// Rows per block: large enough to amortise dispatch, small enough for L1/L2.
 const BLOCK: usize = 256;
 
+thread_local! {
+    /// Scratch columns of [`Tape::eval`], kept between calls on each thread.
+    static SCRATCH: std::cell::RefCell<Vec<Vec<f64>>> = const { std::cell::RefCell::new(Vec::new()) };
+}
+
 /// A compile-time register: scalar (uniform), input column, or computed column.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 enum Reg {
@@ -361,9 +366,19 @@ impl Tape {
             n = n.min(v.len());
         }
         let s = self.scalars(params);
-        // Scratch sized to the data, so small problems (LM on a few dozen rows) stay cheap.
+        // Scratch sized to the data, so small problems (LM on a few dozen rows)
+        // stay cheap, and kept per thread between calls: every instruction
+        // writes its whole column before any reads it, so old values never show.
         let block = BLOCK.min(n);
-        let mut cols: Vec<Vec<f64>> = vec![vec![0.0; block]; self.n_slots];
+        let mut cols: Vec<Vec<f64>> = SCRATCH.with(|c| std::mem::take(&mut *c.borrow_mut()));
+        if cols.len() < self.n_slots {
+            cols.resize_with(self.n_slots, Vec::new);
+        }
+        for c in cols.iter_mut().take(self.n_slots) {
+            if c.len() < block {
+                c.resize(block, 0.0);
+            }
+        }
         let mut start = 0;
         while start < n {
             let len = block.min(n - start);
@@ -404,6 +419,7 @@ impl Tape {
             }
             start = end;
         }
+        SCRATCH.with(|c| *c.borrow_mut() = cols);
     }
 
     /// Evaluates every output at one row of variable values.
