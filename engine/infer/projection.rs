@@ -24,6 +24,9 @@ pub struct Projector<'a> {
     n: usize,
     /// The data columns, as the tape takes them.
     cols: Vec<&'a [f64]>,
+    /// Scratch of [`Projector::scan_ssr`], reused across the grid points of a
+    /// scan (a lock so the projector stays shareable; a busy lock means a fresh buffer).
+    scan_buf: std::sync::Mutex<Vec<f64>>,
 }
 
 impl<'a> Projector<'a> {
@@ -39,6 +42,7 @@ impl<'a> Projector<'a> {
             tape,
             n: problem.y.len(),
             cols: problem.columns(),
+            scan_buf: std::sync::Mutex::new(Vec::new()),
         }
     }
 
@@ -46,8 +50,15 @@ impl<'a> Projector<'a> {
     /// `p` into one buffer (offset, then the m columns, each n long) and turns
     /// the offset into the target y − offset of the linear solve, in place.
     fn target_and_basis(&self, p: &[f64]) -> Vec<f64> {
+        let mut buf = Vec::new();
+        self.target_and_basis_into(p, &mut buf);
+        buf
+    }
+
+    /// [`Projector::target_and_basis`] into `buf` (resized; old values overwritten).
+    fn target_and_basis_into(&self, p: &[f64], buf: &mut Vec<f64>) {
         let n = self.n;
-        let mut buf = vec![0.0; n * (self.sep.linear.len() + 1)];
+        buf.resize(n * (self.sep.linear.len() + 1), 0.0);
         {
             let mut outs: Vec<&mut [f64]> = buf.chunks_mut(n.max(1)).collect();
             self.tape.eval(p, &self.cols, &mut outs);
@@ -55,7 +66,6 @@ impl<'a> Projector<'a> {
         for (o, y) in buf[..n].iter_mut().zip(&self.problem.y) {
             *o = y - *o;
         }
-        buf
     }
 
     /// Number of rows.
@@ -121,7 +131,13 @@ impl<'a> Projector<'a> {
     /// points; ∞ when the model is not finite there).
     pub fn scan_ssr(&self, p: &[f64]) -> f64 {
         let (n, m) = (self.n, self.sep.linear.len());
-        let buf = self.target_and_basis(p);
+        let mut own = Vec::new();
+        let mut guard = self.scan_buf.try_lock();
+        let buf: &mut Vec<f64> = match guard.as_mut() {
+            Ok(g) => g,
+            Err(_) => &mut own,
+        };
+        self.target_and_basis_into(p, buf);
         let (b, g) = buf.split_at(n);
         let s = if m == 0 {
             Some(b.iter().map(|v| v * v).sum::<f64>())
