@@ -1,5 +1,5 @@
-//! The library surface: fit (and, once wired, infer and rank) on in-memory
-//! columns, without files or a command line.
+//! The library surface: [`fit`], [`infer`] and [`rank`] on in-memory columns,
+//! without files or a command line.
 //!
 //! ```
 //! let t = [0.0, 1.0, 2.0, 3.0, 4.0, 5.0];
@@ -13,14 +13,18 @@
 //! assert!((fit.parameters[1].estimate - 0.5).abs() < 1e-6); // k (parameters in natural order: a, k)
 //! ```
 
-use crate::auto_start::starts_for;
+use crate::auto_start::{infer_and_search, starts_for};
 use crate::cli::prepare::{bind_rows, run_fit};
 use crate::data::Dataset;
 use crate::error::Error;
+use crate::fit::problem::Problem;
 use crate::fit::stats::FitSummary;
+use crate::infer::InferOptions;
 use crate::symbolic::Model;
 
 pub use crate::fit::stats::{FitSummary as Summary, ParamEstimate};
+pub use crate::infer::{Inference, ParamStart};
+pub use crate::search::{Minimum, SearchOptions, SearchOutcome};
 
 /// Builds a dataset from named columns of equal length (NaN = missing cell).
 fn dataset(columns: &[(&str, &[f64])]) -> Result<Dataset, Error> {
@@ -55,7 +59,8 @@ fn dataset(columns: &[(&str, &[f64])]) -> Result<Dataset, Error> {
 ///   side alone (the response is the column `y`). Names that are columns are
 ///   variables; every other name is a parameter.
 /// - `starts`: a starting value for every parameter by name; `None` asks
-///   foothold to work them out (not available yet: returns an error).
+///   foothold to work them out (inference, then the multistart search with
+///   its default budget, as the `fit` command does).
 ///
 /// Returns the fit's summary: estimates with standard errors and intervals
 /// (parameters in natural order, `b2` before `b10`), sums of squares,
@@ -66,15 +71,46 @@ pub fn fit(
     formula: &str,
     starts: Option<&[(&str, f64)]>,
 ) -> Result<FitSummary, Error> {
-    let data = dataset(columns)?;
-    let model = Model::new(formula, &data.columns, None)?;
-    let bound = bind_rows(model, &data)?;
-    let problem = &bound.problem;
+    let problem = &problem(columns, formula)?;
     let start = match starts {
         None => starts_for(problem)?,
         Some(given) => ordered_starts(given, &problem.model.params)?,
     };
     Ok(run_fit(problem, &start).1)
+}
+
+/// The least-squares problem of `formula` on `columns` (see [`fit`] for both).
+fn problem(columns: &[(&str, &[f64])], formula: &str) -> Result<Problem, Error> {
+    let data = dataset(columns)?;
+    let model = Model::new(formula, &data.columns, None)?;
+    Ok(bind_rows(model, &data)?.problem)
+}
+
+/// Works out starting values for `formula` on in-memory `columns` (as
+/// [`fit`]) from the model and the data alone, without fitting: the best
+/// start with each parameter's derivation in words (`parameters`), the other
+/// candidate starts, each parameter's natural range and the features found.
+/// Values are in the model's parameter order (`start`), natural order.
+pub fn infer(columns: &[(&str, &[f64])], formula: &str) -> Result<Inference, Error> {
+    let problem = problem(columns, formula)?;
+    crate::infer::infer(&problem, &InferOptions::default())
+        .map_err(|e| Error::Usage(format!("cannot infer starting values: {e}")))
+}
+
+/// Ranks candidate starts for `formula` on in-memory `columns` (as [`fit`])
+/// by the multistart search: inference's candidates and quasi-random points
+/// around them, each refined by Levenberg–Marquardt, grouped into distinct
+/// minima ranked by residual sum of squares, share of starts and iterations.
+/// Each minimum carries the start that reached it (`start`), so it can seed
+/// any other fitter. `options` sets the budget and seed
+/// (`SearchOptions::default()`: 64 starts); the same seed gives the same result.
+pub fn rank(
+    columns: &[(&str, &[f64])],
+    formula: &str,
+    options: &SearchOptions,
+) -> Result<SearchOutcome, Error> {
+    let problem = problem(columns, formula)?;
+    Ok(infer_and_search(&problem, options)?.1)
 }
 
 /// Starting values in parameter order from (name, value) pairs.
@@ -108,12 +144,6 @@ fn ordered_starts(given: &[(&str, f64)], params: &[String]) -> Result<Vec<f64>, 
         })
         .collect()
 }
-
-// LEAD: `pub fn infer(columns: &[(&str, &[f64])], formula: &str) -> Result<Inference, Error>`
-// goes here: build the problem as in `fit` and call `crate::infer::infer`.
-
-// LEAD: `pub fn rank(columns: &[(&str, &[f64])], formula: &str, options) -> Result<Ranking, Error>`
-// goes here: build the problem as in `fit` and call the multistart search.
 
 #[cfg(test)]
 mod tests {
@@ -156,5 +186,34 @@ mod tests {
         // Without starts, inference and the search supply them: a = Σxy/Σx² = 14.3/14.
         let s = fit(&[("x", &x), ("y", &y)], "a*x", None).unwrap();
         assert!((s.parameters[0].estimate - 14.3 / 14.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn infers_and_ranks_noise_free_columns() {
+        // Invented: y = 3 + 2*exp(-0.4*t), no noise.
+        let t: Vec<f64> = (0..20).map(|i| i as f64 * 0.5).collect();
+        let y: Vec<f64> = t.iter().map(|t| 3.0 + 2.0 * (-0.4 * t).exp()).collect();
+        let cols: [(&str, &[f64]); 2] = [("t", &t), ("y", &y)];
+        let inf = infer(&cols, "y = c + a*exp(-k*t)").unwrap();
+        let names: Vec<&str> = inf.parameters.iter().map(|p| p.name.as_str()).collect();
+        assert_eq!(names, ["a", "c", "k"]);
+        assert!(inf.parameters.iter().all(|p| !p.derivation.is_empty()));
+        // Inference alone lands close: k within 5% of 0.4.
+        assert!((inf.start[2] - 0.4).abs() < 0.02, "{:?}", inf.start);
+        let opts = SearchOptions {
+            starts: 12,
+            ..SearchOptions::default()
+        };
+        let ranked = rank(&cols, "y = c + a*exp(-k*t)", &opts).unwrap();
+        assert_eq!(ranked.candidates_tried, 12);
+        let best = ranked.best().unwrap();
+        assert_eq!(best.rank, 1);
+        assert!((best.params[2] - 0.4).abs() < 1e-6, "{:?}", best.params);
+        assert_eq!(best.start.len(), 3);
+        // Same seed, same outcome.
+        let again = rank(&cols, "y = c + a*exp(-k*t)", &opts).unwrap();
+        assert_eq!(again.best().unwrap().params, best.params);
+        // Bad input is an error, not a panic.
+        assert!(infer(&cols, "y = c + a*exp(-k*").is_err());
     }
 }

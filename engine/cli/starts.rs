@@ -7,7 +7,7 @@ use thiserror::Error;
 #[derive(Debug, Clone, PartialEq, Error)]
 pub enum StartError {
     /// No `--start` at all.
-    #[error("no starting values given: foothold does not yet work them out itself, so give one for every parameter, e.g. --start {example} (parameters: {params})")]
+    #[error("no starting values given: give one for every parameter, e.g. --start {example}, or leave --start out to let foothold work them out (parameters: {params})")]
     NoneGiven { params: String, example: String },
     /// An item without `=`.
     #[error("--start '{item}' is not NAME=VALUE (parameters: {params})")]

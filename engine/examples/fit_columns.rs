@@ -2,7 +2,8 @@
 //!
 //! Invented scenario: a batch of dough proving in a warm room; its height (mm)
 //! rises towards a ceiling. The saturation model h = hmax*(1 - exp(-k*t)) is
-//! fitted from rough starting values.
+//! fitted from rough starting values; then foothold works out starting values
+//! itself (`infer`) and ranks the minima of a multistart search (`rank`).
 //!
 //! Run with `cargo run --example fit_columns`.
 
@@ -33,5 +34,39 @@ fn main() {
             eprintln!("fit_columns: {e}");
             std::process::exit(2);
         }
+    }
+
+    let columns: [(&str, &[f64]); 2] = [("minutes", &minutes), ("height", &height)];
+    let model = "height = hmax*(1 - exp(-k*minutes))";
+    match foothold::api::infer(&columns, model) {
+        Ok(inf) => {
+            println!("\nstarting values worked out by foothold:");
+            for p in &inf.parameters {
+                println!("{:>5} = {:.5}: {}", p.name, p.start, p.derivation);
+            }
+        }
+        Err(e) => eprintln!("fit_columns: {e}"),
+    }
+    let options = foothold::api::SearchOptions {
+        starts: 16,
+        ..Default::default()
+    };
+    match foothold::api::rank(&columns, model, &options) {
+        Ok(outcome) => {
+            println!(
+                "\n{} starts tried, {} distinct minima; the best:",
+                outcome.candidates_tried,
+                outcome.minima.len()
+            );
+            if let Some(m) = outcome.best() {
+                println!(
+                    "ssr {:.5}, reached by {:.0}% of starts, from start {:?}",
+                    m.ssr,
+                    100.0 * m.share,
+                    m.start
+                );
+            }
+        }
+        Err(e) => eprintln!("fit_columns: {e}"),
     }
 }
