@@ -209,3 +209,46 @@ fn out_writes_a_complete_file_and_no_temporary() {
     assert!(err.contains("cannot write"), "{err}");
     let _ = std::fs::remove_dir_all(&d);
 }
+
+#[test]
+fn infer_and_rank_json_have_every_field_their_schemas_require() {
+    // demo-data/part_cooling.csv (invented) with the cooling model.
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let schema = |name: &str| -> serde_json::Value {
+        serde_json::from_str(
+            &std::fs::read_to_string(root.join(format!("docs/schema/{name}.schema.json"))).unwrap(),
+        )
+        .unwrap()
+    };
+    let model = "temp = ambient + delta*exp(-k*minutes)";
+    for (command, list) in [("infer", "parameters"), ("rank", "candidates")] {
+        let (code, out, err) = run(&[
+            command,
+            "demo-data/part_cooling.csv",
+            "--model",
+            model,
+            "--format",
+            "json",
+        ]);
+        assert_eq!(code, 0, "{command}: {err}");
+        let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+        let s = schema(command);
+        for field in required(&s) {
+            assert!(v.get(&field).is_some(), "{command}: missing {field}");
+        }
+        let items = v[list].as_array().unwrap();
+        assert!(!items.is_empty(), "{command}: no {list}");
+        for item in items {
+            for field in required(&s["properties"][list]["items"]) {
+                assert!(
+                    item.get(&field).is_some(),
+                    "{command}: {list} item lacks {field}: {item}"
+                );
+            }
+        }
+        println!(
+            "{command}: {} {list}, every required field present",
+            items.len()
+        );
+    }
+}

@@ -41,11 +41,21 @@ pub fn run_infer(
     }
     let text = match args.output.format {
         Format::Table => infer_table(&inf, &bound.problem.model.text, &bound.context.data),
-        Format::Json => infer_json(&inf, &bound.problem.model.text, &bound.context.data)
-            .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?,
+        Format::Json => infer_json(
+            &inf,
+            &bound.problem.model.text,
+            &bound.context.data,
+            &bound.context.response,
+        )
+        .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?,
         Format::Yaml => {
-            let json = infer_json(&inf, &bound.problem.model.text, &bound.context.data)
-                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?;
+            let json = infer_json(
+                &inf,
+                &bound.problem.model.text,
+                &bound.context.data,
+                &bound.context.response,
+            )
+            .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?;
             let value: serde_json::Value = serde_json::from_str(&json)
                 .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?;
             serde_yaml_ng::to_string(&value)
@@ -168,6 +178,7 @@ struct ParamOut<'a> {
 struct InferOut<'a> {
     model: &'a str,
     data: &'a str,
+    response: &'a str,
     parameters: Vec<ParamOut<'a>>,
     features: &'a crate::features::DataFeatures,
     candidates: &'a [crate::infer::Candidate],
@@ -175,11 +186,18 @@ struct InferOut<'a> {
     notes: &'a [String],
 }
 
-/// The inference as JSON (non-finite numbers become `null`).
-pub fn infer_json(inf: &Inference, model: &str, source: &str) -> Result<String, serde_json::Error> {
+/// The inference as JSON (non-finite numbers become `null`), with the model,
+/// the data source and the response column, as docs/schema/infer.schema.json says.
+pub fn infer_json(
+    inf: &Inference,
+    model: &str,
+    source: &str,
+    response: &str,
+) -> Result<String, serde_json::Error> {
     let doc = InferOut {
         model,
         data: source,
+        response,
         parameters: inf
             .parameters
             .iter()

@@ -117,23 +117,25 @@ pub fn run_rank(
     }
     let names = &bound.problem.model.params;
     let list = ranked(names, &outcome, args.top.unwrap_or(5).max(1));
+    // One document for JSON and YAML, as docs/schema/rank.schema.json says.
+    let doc = || {
+        serde_json::json!({
+            "model": bound.problem.model.text,
+            "data": bound.context.data,
+            "response": bound.context.response,
+            "candidates_tried": outcome.candidates_tried,
+            "minima_found": outcome.minima.len(),
+            "candidates": list,
+        })
+    };
     let text = match args.output.format {
         Format::Json => {
-            let doc = serde_json::json!({
-                "model": bound.problem.model.text,
-                "candidates_tried": outcome.candidates_tried,
-                "minima_found": outcome.minima.len(),
-                "candidates": list,
-            });
-            serde_json::to_string_pretty(&doc)
+            serde_json::to_string_pretty(&doc())
                 .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
                 + "\n"
         }
-        Format::Yaml => {
-            let doc = serde_json::json!({ "candidates_tried": outcome.candidates_tried, "minima_found": outcome.minima.len(), "candidates": list });
-            serde_yaml_ng::to_string(&doc)
-                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
-        }
+        Format::Yaml => serde_yaml_ng::to_string(&doc())
+            .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?,
         Format::Csv => {
             let mut s = String::from("rank,parameter,start,estimate,ssr,share,iterations\n");
             for c in &list {
