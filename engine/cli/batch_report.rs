@@ -87,12 +87,7 @@ pub fn run_batch_report(
     );
 
     let x_name = model.vars.first().cloned().unwrap_or_default();
-    let y_label = match &model.lhs {
-        Some(l) => l
-            .display(&[], std::slice::from_ref(&model.response))
-            .to_string(),
-        None => model.response.clone(),
-    };
+    let y_label = model.response_text();
     let all: Vec<GroupSeries> = fits
         .iter()
         .zip(&groups)

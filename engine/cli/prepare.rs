@@ -81,16 +81,14 @@ pub struct Bound {
     pub context: FitContext,
 }
 
-/// A warning when every response value is the same: a fit then has nothing
-/// to explain, and its standard errors (zero or undefined) say nothing.
-fn constant_response_warning(y: &[f64], response: &str) -> Option<String> {
-    let first = *y.first()?;
-    (y.len() >= 2 && y.iter().all(|v| *v == first)).then(|| {
-        format!(
-            "the response '{response}' is constant ({first} in all {} rows): the fit has nothing to explain and its standard errors mean nothing",
-            y.len()
-        )
-    })
+/// A warning when every response value is the same ([`Problem::constant_response`]):
+/// a fit then has nothing to explain, and its standard errors say nothing.
+fn constant_response_warning(problem: &Problem, response: &str) -> Option<String> {
+    let rows = problem.y.len();
+    let value = problem.constant_response().filter(|_| rows >= 2)?;
+    Some(format!(
+        "the response '{response}' is constant ({value} in all {rows} rows): the fit has nothing to explain and its standard errors mean nothing"
+    ))
 }
 
 /// Keeps the rows with every needed cell present and binds the problem.
@@ -118,7 +116,7 @@ pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
     // Bound to the whole table (the problem drops the same incomplete rows
     // itself) so that a row named in an error is the row of the data as given.
     let problem = Problem::new(model, data)?;
-    if let Some(w) = constant_response_warning(&problem.y, &context.response) {
+    if let Some(w) = constant_response_warning(&problem, &context.response) {
         context.warnings.push(w);
     }
     Ok(Bound { problem, context })

@@ -109,12 +109,7 @@ impl Problem {
             }
         }
         let x_used = &x[..model.vars.len()];
-        let lhs_text = match &model.lhs {
-            Some(l) => l
-                .display(&[], std::slice::from_ref(&model.response))
-                .to_string(),
-            None => model.response.clone(),
-        };
+        let lhs_text = model.response_text();
 
         let mut keep = Vec::with_capacity(n);
         let mut gy = Vec::with_capacity(n);
@@ -188,6 +183,13 @@ impl Problem {
             value_tape,
             jacobian_tape,
         })
+    }
+
+    /// The response value when every row has the same one (a flat response:
+    /// nothing to infer from, and standard errors that mean nothing).
+    pub fn constant_response(&self) -> Option<f64> {
+        let first = *self.y.first()?;
+        self.y.iter().all(|&v| v == first).then_some(first)
     }
 
     /// The predictor columns as slices, in `model.vars` order.

@@ -111,16 +111,6 @@ pub struct Inference {
     pub notes: Vec<String>,
 }
 
-/// The response as the fit sees it: `y`, or the left-hand side `log(y)`.
-fn response_text(model: &crate::symbolic::Model) -> String {
-    match &model.lhs {
-        Some(l) => l
-            .display(&[], std::slice::from_ref(&model.response))
-            .to_string(),
-        None => model.response.clone(),
-    }
-}
-
 /// Infers starting values for every parameter of `problem` from the model and the data.
 pub fn infer(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferError> {
     let n = problem.y.len();
@@ -128,10 +118,10 @@ pub fn infer(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferE
         return Err(InferError::NoRows);
     }
     let model = &problem.model;
-    if problem.y.iter().all(|&v| v == problem.y[0]) {
+    if let Some(value) = problem.constant_response() {
         return Err(InferError::ConstantResponse {
-            response: response_text(model),
-            value: problem.y[0],
+            response: model.response_text(),
+            value,
             rows: n,
         });
     }

@@ -283,12 +283,7 @@ pub fn fit_sheet(problem: &Problem, start: &[f64], estimates: &[f64], title: &st
         }
     }
     let model = &problem.model;
-    let y_label = match &model.lhs {
-        Some(l) => l
-            .display(&[], std::slice::from_ref(&model.response))
-            .to_string(),
-        None => model.response.clone(),
-    };
+    let y_label = model.response_text();
     FitSheet {
         title: title.to_string(),
         x_label: model.vars.first().cloned().unwrap_or_default(),

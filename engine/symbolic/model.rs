@@ -45,6 +45,17 @@ pub struct Model {
 }
 
 impl Model {
+    /// The response as the fit sees it: the column name, or the left-hand
+    /// side written out (`log(y)`) when the formula transforms it.
+    pub fn response_text(&self) -> String {
+        match &self.lhs {
+            Some(l) => l
+                .display(&[], std::slice::from_ref(&self.response))
+                .to_string(),
+            None => self.response.clone(),
+        }
+    }
+
     /// Parses `text` and binds it to `columns`. `response` names the response
     /// column when the formula has no left side (default `y`).
     pub fn new(
