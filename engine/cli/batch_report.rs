@@ -7,6 +7,7 @@ use super::args::ReportArgs;
 use super::batch::{batch_groups, fit_groups, GroupFit, GroupStatus};
 use super::model_arg::resolve_model;
 use super::output::emit;
+use super::prepare::starts_given;
 use super::report_cmd::report_date;
 use super::Outcome;
 use crate::data::Dataset;
@@ -172,7 +173,7 @@ pub fn run_batch_report(
         ("Columns used".to_string(), columns.join(", ")),
         (
             "Starting values".to_string(),
-            if args.start.iter().any(|s| !s.trim().is_empty()) {
+            if starts_given(&args.start) {
                 "given on the command line (--start), the same for every group".to_string()
             } else {
                 "worked out for each group by inference and the multistart search".to_string()

@@ -122,9 +122,14 @@ pub fn bind_rows(model: Model, data: &Dataset) -> Result<Bound, Error> {
     Ok(Bound { problem, context })
 }
 
+/// True when `--start` holds at least one item (empty items do not count).
+pub fn starts_given(items: &[String]) -> bool {
+    items.iter().any(|s| !s.trim().is_empty())
+}
+
 /// The starting values: the `--start` items when given, else the automatic hook.
 pub fn starting_values(items: &[String], problem: &Problem) -> Result<Vec<f64>, Error> {
-    if items.iter().all(|s| s.trim().is_empty()) {
+    if !starts_given(items) {
         return starts_for(problem);
     }
     parse_starts(items, &problem.model.params).map_err(|e| Error::Usage(e.to_string()))
@@ -141,7 +146,7 @@ pub fn starting_values_searched(
     problem: &Problem,
     opts: &crate::search::SearchOptions,
 ) -> Result<StartsSearched, Error> {
-    if items.iter().all(|s| s.trim().is_empty()) {
+    if !starts_given(items) {
         let (start, counts) = crate::auto_start::starts_with_options(problem, opts)?;
         return Ok((start, Some(counts)));
     }

@@ -5,8 +5,8 @@
 use super::args::ReportArgs;
 use super::batch_report::run_batch_report;
 use super::output::{emit, write_plots};
-use super::prepare::{bind_rows, model_for, read_input, run_fit, starting_values};
-use super::rank_cmd::search_options;
+use super::prepare::{bind_rows, model_for, read_input, run_fit, starting_values, starts_given};
+use super::rank_cmd::{ranked, search_options};
 use super::Outcome;
 use crate::auto_start::{best_start, infer_and_search};
 use crate::error::Error;
@@ -93,40 +93,33 @@ fn searched_starts(problem: &Problem, opts: &SearchOptions) -> Result<SearchedSt
             }
         })
         .collect();
-    let minima = outcome
-        .minima
-        .iter()
-        .take(REPORT_MINIMA)
-        .map(|m| MinimumRow {
-            rank: m.rank,
-            ssr: m.ssr,
-            share: m.share,
-            iterations: if m.iterations_median.is_finite() {
-                m.iterations_median.round() as usize
-            } else {
-                0
-            },
-            parameters: {
-                let point = names
-                    .iter()
-                    .zip(&m.params)
-                    .map(|(n, v)| format!("{n} = {}", format_number(*v, SIGNIFICANT)))
-                    .collect::<Vec<_>>()
-                    .join(", ");
-                let divergent: Vec<&str> = m
-                    .divergent
-                    .iter()
-                    .filter_map(|&i| names.get(i).map(String::as_str))
-                    .collect();
-                if divergent.is_empty() {
+    // The same ranked list `rank` prints, as rows of the page.
+    let minima = ranked(names, &outcome, REPORT_MINIMA)
+        .into_iter()
+        .map(|c| {
+            let point = c
+                .parameters
+                .iter()
+                .map(|p| {
+                    let v = p.estimate.unwrap_or(f64::NAN);
+                    format!("{} = {}", p.name, format_number(v, SIGNIFICANT))
+                })
+                .collect::<Vec<_>>()
+                .join(", ");
+            MinimumRow {
+                rank: c.rank,
+                ssr: c.ssr.unwrap_or(f64::NAN),
+                share: c.share.unwrap_or(f64::NAN),
+                iterations: c.iterations.map_or(0, |v| v.round() as usize),
+                parameters: if c.divergent.is_empty() {
                     point
                 } else {
                     format!(
                         "{point} (at a boundary or running to infinity: {})",
-                        divergent.join(", ")
+                        c.divergent.join(", ")
                     )
-                }
-            },
+                },
+            }
         })
         .collect();
     Ok((start, rows, minima))
@@ -145,7 +138,7 @@ pub fn run_report(
     let (spec, model) = model_for(&args.input, &data)?;
     let bound = bind_rows(model, &data)?;
     let problem = &bound.problem;
-    let given = args.start.iter().any(|s| !s.trim().is_empty());
+    let given = starts_given(&args.start);
     let (start, starts, minima) = if given {
         let start = starting_values(&args.start, problem)?;
         let rows = problem
