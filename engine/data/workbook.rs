@@ -11,24 +11,22 @@ use calamine::{open_workbook_auto, Cell, Data, DataRef, Range, Reader, Sheets};
 /// File extensions read as workbooks (compared without regard to case).
 pub const WORKBOOK_EXTENSIONS: &[&str] = &["xlsx", "xlsm", "xlsb", "xls"];
 
-/// True when the path names an OpenDocument spreadsheet (refused: see [`DataError::OdsRefused`]).
-pub(crate) fn is_ods_path(path: &str) -> bool {
+/// True when the path's extension is one of `extensions` (without regard to case).
+fn has_extension(path: &str, extensions: &[&str]) -> bool {
     std::path::Path::new(path)
         .extension()
         .and_then(|e| e.to_str())
-        .is_some_and(|e| e.eq_ignore_ascii_case("ods"))
+        .is_some_and(|e| extensions.iter().any(|w| e.eq_ignore_ascii_case(w)))
+}
+
+/// True when the path names an OpenDocument spreadsheet (refused: see [`DataError::OdsRefused`]).
+pub(crate) fn is_ods_path(path: &str) -> bool {
+    has_extension(path, &["ods"])
 }
 
 /// True when the path's extension names a workbook format.
 pub(crate) fn is_workbook_path(path: &str) -> bool {
-    std::path::Path::new(path)
-        .extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| {
-            WORKBOOK_EXTENSIONS
-                .iter()
-                .any(|w| e.eq_ignore_ascii_case(w))
-        })
+    has_extension(path, WORKBOOK_EXTENSIONS)
 }
 
 /// Reads one sheet (by name, or 1-based number; default the first) of a workbook.
