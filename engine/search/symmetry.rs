@@ -160,6 +160,16 @@ pub fn find_signed_swaps(model: &Model) -> Vec<(Vec<usize>, usize)> {
     let Some(probe) = Probe::new(model, 0x51_65_ED_5A) else {
         return Vec::new();
     };
+    // Parameters whose change of sign alone leaves the model unchanged, once each.
+    let flips_alone: Vec<bool> = (0..n)
+        .map(|k| {
+            probe.unchanged(|p| {
+                let mut q = p.to_vec();
+                q[k] = -q[k];
+                q
+            })
+        })
+        .collect();
     let mut out = Vec::new();
     for i in 0..n {
         for j in i + 1..n {
@@ -167,15 +177,7 @@ pub fn find_signed_swaps(model: &Model) -> Vec<(Vec<usize>, usize)> {
             if probe.unchanged(|p| apply(&perm, p)) {
                 continue;
             }
-            for k in (0..n).filter(|&k| k != i && k != j) {
-                let flip_alone = probe.unchanged(|p| {
-                    let mut q = p.to_vec();
-                    q[k] = -q[k];
-                    q
-                });
-                if flip_alone {
-                    continue;
-                }
+            for k in (0..n).filter(|&k| k != i && k != j && !flips_alone[k]) {
                 let together = probe.unchanged(|p| {
                     let mut q = apply(&perm, p);
                     q[k] = -q[k];
