@@ -39,10 +39,14 @@ pub enum Outcome {
 }
 
 /// Runs the command line of this process and returns the exit code.
+///
+/// Standard error is passed unlocked: each message takes the lock only while
+/// it is written, so the batch progress bar, drawn from worker threads, never
+/// waits on a lock the main thread holds for the whole run (that froze every
+/// batch on a terminal).
 pub fn run() -> i32 {
     let stdout = std::io::stdout();
-    let stderr = std::io::stderr();
-    run_from(std::env::args_os(), &mut stdout.lock(), &mut stderr.lock())
+    run_from(std::env::args_os(), &mut stdout.lock(), &mut std::io::stderr())
 }
 
 /// Runs a command line (`args[0]` is the program name) with the given
