@@ -1,5 +1,5 @@
-//! Declarative knowledge loaded from `rules/` (YAML): function limits and
-//! dominance order, response transforms with their rewrite rules, neutral values
+//! Declarative knowledge loaded from `rules/` (YAML): the dominance order of
+//! growth components, response transforms with their rewrite rules, neutral values
 //! and scan scales. The default files are embedded so the binary works from
 //! anywhere; they are parsed and checked once, on first use.
 
@@ -32,7 +32,7 @@ pub enum RulesError {
 /// All rules, parsed and checked.
 #[derive(Debug, Clone)]
 pub struct Rules {
-    /// Function limits and the dominance order.
+    /// The dominance order of growth components.
     pub limits: LimitRules,
     /// Response transforms and rewrite rules.
     pub transforms: TransformRules,
@@ -74,82 +74,13 @@ pub enum Component {
     Const,
 }
 
-/// How a function behaves as its argument tends somewhere.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Behaviour {
-    /// Tends to this constant.
-    Value(Expr),
-    /// `f(u) ~ k·u`.
-    LikeArg(f64),
-    /// `f(u) ~ scale·exp(sign·u)`.
-    ExpOfArg { scale: f64, sign: f64 },
-    /// `f(u) ~ k·log(u)`.
-    LogOfArg(f64),
-    /// `f(u) ~ u^q`.
-    Power(f64),
-    /// Bounded, no limit (oscillates).
-    Bounded,
-    /// No usable rule.
-    Unknown,
-}
-
-/// A function's limit rules and derivative.
-#[derive(Debug, Clone, PartialEq)]
-pub struct FunctionRule {
-    /// Argument → +∞.
-    pub pos_inf: Behaviour,
-    /// Argument → −∞.
-    pub neg_inf: Behaviour,
-    /// Argument → 0.
-    pub zero: Behaviour,
-    /// Argument merely bounded.
-    pub bounded_arg: Behaviour,
-    /// `f'(u)` with `u = Param(0)`.
-    pub derivative: Expr,
-}
-
-/// Rules of `limits.yaml`.
-#[derive(Debug, Clone)]
+/// Rules of `limits.yaml`: the order in which growth components dominate.
+/// (How each function behaves is a function fact: `symbolic::functions`.)
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
 pub struct LimitRules {
     /// Components in decreasing dominance.
     pub dominance: Vec<Component>,
-    functions: BTreeMap<Func, FunctionRule>,
-}
-
-impl LimitRules {
-    /// The rule for one function.
-    pub fn function(&self, f: Func) -> Option<&FunctionRule> {
-        self.functions.get(&f)
-    }
-}
-
-#[derive(Deserialize)]
-#[serde(rename_all = "snake_case", deny_unknown_fields)]
-enum RawBehaviour {
-    Value(String),
-    LikeArg { scale: f64 },
-    ExpOfArg { scale: f64, sign: f64 },
-    LogOfArg { scale: f64 },
-    Power(f64),
-    Bounded,
-    Unknown,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFunction {
-    pos_inf: RawBehaviour,
-    neg_inf: RawBehaviour,
-    zero: RawBehaviour,
-    bounded_arg: RawBehaviour,
-    derivative: String,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawLimits {
-    dominance: Vec<Component>,
-    functions: BTreeMap<String, RawFunction>,
 }
 
 /// Parses a formula whose names must come from `allowed`; `Param(i)` = `allowed[i]`.
@@ -174,51 +105,22 @@ fn formula(text: &str, allowed: &[&str], file: &'static str) -> Result<Expr, Rul
 
 fn parse_limits(text: &str) -> Result<LimitRules, RulesError> {
     const FILE: &str = "limits.yaml";
-    // behaviours are written as one-key maps ({value: "1"}), not YAML tags
-    let raw: RawLimits = serde_yaml_ng::with::singleton_map_recursive::deserialize(
-        serde_yaml_ng::Deserializer::from_str(text),
-    )
-    .map_err(|source| RulesError::Yaml { file: FILE, source })?;
-    let conv = |b: RawBehaviour| -> Result<Behaviour, RulesError> {
-        Ok(match b {
-            RawBehaviour::Value(s) => Behaviour::Value(formula(&s, &[], FILE)?),
-            RawBehaviour::LikeArg { scale } => Behaviour::LikeArg(scale),
-            RawBehaviour::ExpOfArg { scale, sign } => Behaviour::ExpOfArg { scale, sign },
-            RawBehaviour::LogOfArg { scale } => Behaviour::LogOfArg(scale),
-            RawBehaviour::Power(q) => Behaviour::Power(q),
-            RawBehaviour::Bounded => Behaviour::Bounded,
-            RawBehaviour::Unknown => Behaviour::Unknown,
-        })
-    };
-    let mut functions = BTreeMap::new();
-    for (name, r) in raw.functions {
-        let f = Func::from_name(&name).ok_or_else(|| RulesError::Invalid {
-            file: FILE,
-            message: format!("unknown function '{name}'"),
-        })?;
-        functions.insert(
-            f,
-            FunctionRule {
-                pos_inf: conv(r.pos_inf)?,
-                neg_inf: conv(r.neg_inf)?,
-                zero: conv(r.zero)?,
-                bounded_arg: conv(r.bounded_arg)?,
-                derivative: formula(&r.derivative, &["u"], FILE)?,
-            },
-        );
-    }
-    for f in Func::ALL {
-        if !functions.contains_key(&f) {
+    let raw: LimitRules =
+        serde_yaml_ng::from_str(text).map_err(|source| RulesError::Yaml { file: FILE, source })?;
+    for c in [
+        Component::Exp,
+        Component::Power,
+        Component::Log,
+        Component::Const,
+    ] {
+        if raw.dominance.iter().filter(|d| **d == c).count() != 1 {
             return Err(RulesError::Invalid {
                 file: FILE,
-                message: format!("no rule for function '{}'", f.name()),
+                message: format!("dominance must name {c:?} exactly once"),
             });
         }
     }
-    Ok(LimitRules {
-        dominance: raw.dominance,
-        functions,
-    })
+    Ok(raw)
 }
 
 // ---------------------------------------------------------------- transforms
@@ -432,9 +334,6 @@ mod tests {
     fn every_rule_file_parses_and_is_complete() {
         let r = parse_rules(LIMITS_YAML, TRANSFORMS_YAML, NEUTRAL_YAML).unwrap();
         assert_eq!(r.limits.dominance.len(), 4);
-        for f in Func::ALL {
-            assert!(r.limits.function(f).is_some(), "{}", f.name());
-        }
         // every rule set is used by some transform
         for set in r.transforms.rule_sets.keys() {
             assert!(
@@ -447,14 +346,11 @@ mod tests {
         }
         assert!(r.transforms.transforms.iter().any(|t| t.name == "log"));
         assert!(r.neutral.neutral.contains_key("bending_exponent"));
-        // derivative of atan at u = 1 is 1/2 (standard calculus)
-        let d = &r.limits.function(Func::Atan).unwrap().derivative;
-        assert_eq!(d.eval(&[1.0], &[]), 0.5);
     }
 
     #[test]
     fn bad_files_are_errors() {
-        let bad = LIMITS_YAML.replace("derivative: \"exp(u)\"", "derivative: \"exp(w)\"");
+        let bad = LIMITS_YAML.replace("[exp, power, log, const]", "[exp, power, log, log]");
         assert!(matches!(
             parse_rules(&bad, TRANSFORMS_YAML, NEUTRAL_YAML),
             Err(RulesError::Invalid { .. })

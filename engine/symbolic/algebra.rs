@@ -299,40 +299,7 @@ pub fn isolate(value: Expr, e: &Expr, p: usize, notes: &mut Vec<String>) -> Opti
             }
         }
         Expr::Call(f, a) => {
-            let inv = match f {
-                Func::Exp => call(Func::Log, value),
-                Func::Log => call(Func::Exp, value),
-                Func::Log10 => pow(Expr::Num(10.0), value),
-                Func::Sqrt => pow(value, Expr::Num(2.0)),
-                Func::Atan => call(Func::Tan, value),
-                Func::Tan => {
-                    notes.push("tan inverted on its principal branch".into());
-                    call(Func::Atan, value)
-                }
-                Func::Sin => {
-                    notes.push("sin inverted on its principal branch".into());
-                    call(Func::Asin, value)
-                }
-                Func::Cos => {
-                    notes.push("cos inverted on its principal branch".into());
-                    call(Func::Acos, value)
-                }
-                Func::Asin => call(Func::Sin, value),
-                Func::Acos => call(Func::Cos, value),
-                Func::Abs => {
-                    notes.push("abs inverted taking the positive value".into());
-                    value
-                }
-                Func::Tanh => {
-                    // atanh(v) = log((1 + v)/(1 − v)) / 2
-                    let r = div(
-                        add(Expr::Num(1.0), value.clone()),
-                        sub(Expr::Num(1.0), value),
-                    );
-                    mul(Expr::Num(0.5), call(Func::Log, r))
-                }
-                Func::Sinh | Func::Cosh => return None,
-            };
+            let inv = super::functions::inverse(*f, value, notes)?;
             isolate(inv, a, p, notes)
         }
         _ => None,

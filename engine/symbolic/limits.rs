@@ -8,9 +8,10 @@
 //! leading form `c·t^p·(log t)^m·exp(P(t))` (t = x, or t = −x at −∞; at 0⁺ the
 //! polynomial P is in 1/t). Sums keep the dominant term (the order of the
 //! components, exp > power > log > const, comes from `rules/limits.yaml`), products
-//! multiply forms, functions follow the YAML behaviour table. At 0⁺ an analytic
-//! model gets its first-order expansion value + slope·x instead (forward-mode
-//! series using the YAML derivatives). Soundness over reach: cancellation of
+//! multiply forms, functions follow their behaviour in the facts table
+//! (`symbolic::functions`). At 0⁺ an analytic model gets its first-order
+//! expansion value + slope·x instead (forward-mode series using the table's
+//! derivatives). Soundness over reach: cancellation of
 //! leading terms, or any case without a rule, gives `Unknown`. Generic case:
 //! leading coefficients are assumed non-zero.
 
@@ -18,7 +19,8 @@ use super::algebra::{self, ser_expr};
 use super::expr::{BinOp, Expr, Func};
 use super::model::Model;
 use super::poly::{self, Atom};
-use crate::rules::{rules, Behaviour, Component, LimitRules};
+use super::functions::{derivative, facts, Behaviour};
+use crate::rules::{rules, Component, LimitRules};
 use serde::Serialize;
 
 /// More cases than this collapse to one `Unknown` case.
@@ -361,7 +363,7 @@ impl Ctx<'_> {
                 o => o,
             },
             Expr::Bin(BinOp::Mul | BinOp::Div, a, b) => both(a, b),
-            Expr::Call(Func::Exp | Func::Sqrt | Func::Cosh | Func::Abs, _) => Sg::Known(1),
+            Expr::Call(f, _) if facts(*f).never_negative() => Sg::Known(1),
             Expr::Bin(BinOp::Pow, a, b) => match **b {
                 Expr::Num(n) if n.fract() == 0.0 && (n as i64) % 2 == 0 => Sg::Known(1),
                 Expr::Num(n) if n.fract() == 0.0 => self.sign(a, asm),
@@ -678,9 +680,7 @@ impl Ctx<'_> {
     }
 
     fn call_asy(&self, asm: &Asm, f: Func, x: &Asy, arg: &Expr) -> Cases<Asy> {
-        let Some(rule) = self.rules.function(f) else {
-            return vec![(asm.clone(), Asy::Unknown)];
-        };
+        let rule = &facts(f);
         let one = |a: Asy| vec![(asm.clone(), a)];
         match x {
             Asy::Form(a) => {
@@ -995,13 +995,11 @@ impl Ctx<'_> {
             Expr::Call(f, a) => {
                 let (a0, a1) = self.taylor(a)?;
                 let a0t = algebra::tidy(&a0);
-                if matches!(f, Func::Log | Func::Log10 | Func::Sqrt | Func::Abs)
-                    && algebra::is_zero(&a0t)
-                {
+                if !facts(*f).smooth_at_zero && algebra::is_zero(&a0t) {
                     return None;
                 }
-                let rule = self.rules.function(*f)?;
-                let d = rule.derivative.subst_param(0, &a0t);
+                // f'(a0) from the facts table, with u' = 1 and f(a0) as a plain node
+                let d = derivative(*f, &a0t, &Expr::call(*f, a0t.clone()), Expr::Num(1.0));
                 (algebra::call(*f, a0t), algebra::mul(d, a1))
             }
             _ => return None,

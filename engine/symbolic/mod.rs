@@ -4,6 +4,7 @@
 pub mod algebra;
 pub mod diff;
 pub mod expr;
+pub mod functions;
 pub mod limits;
 pub mod linearity;
 pub mod model;

@@ -16,6 +16,7 @@
 
 use super::algebra::{self, ser_expr};
 use super::expr::{Expr, Func};
+use super::functions::facts;
 use super::linearity::affine_in;
 use super::model::Model;
 use super::poly::{self, Atom, Poly};
@@ -389,7 +390,7 @@ fn collect_log_conditions(e: &Expr, m: &Model, out: &mut Vec<String>) {
     fn walk(e: &Expr, add: &mut dyn FnMut(&Expr)) {
         match e {
             Expr::Call(f, a) => {
-                if matches!(f, Func::Log | Func::Log10 | Func::Sqrt) {
+                if facts(*f).needs_positive_argument() {
                     add(a);
                 }
                 walk(a, add);
