@@ -15,6 +15,7 @@
 //! leading terms, or any case without a rule, gives `Unknown`. Generic case:
 //! leading coefficients are assumed non-zero.
 
+use super::simplify::{self, simplify};
 use super::algebra::{self, ser_expr};
 use super::expr::{BinOp, Expr, Func};
 use super::model::Model;
@@ -188,7 +189,7 @@ pub fn limit_cases(f: &Expr, var: usize, dir: Direction) -> Vec<LimitCase> {
     };
     if dir == Direction::ZeroPlus {
         if let Some((v0, v1)) = cx.taylor(f) {
-            let (value, slope) = (algebra::tidy(&v0), algebra::tidy(&v1));
+            let (value, slope) = (simplify(&v0), simplify(&v1));
             let leading = if algebra::is_zero(&slope) {
                 Leading::Const {
                     value: value.clone(),
@@ -260,23 +261,23 @@ impl Form {
         let expo = (0..n)
             .map(|k| {
                 let b = get(o, k);
-                algebra::tidy(&if s > 0.0 {
-                    algebra::add(get(self, k), b)
+                simplify(&if s > 0.0 {
+                    simplify::add(get(self, k), b)
                 } else {
-                    algebra::sub(get(self, k), b)
+                    simplify::sub(get(self, k), b)
                 })
             })
             .collect();
         Form {
-            coef: algebra::tidy(&if s > 0.0 {
-                algebra::mul(self.coef.clone(), o.coef.clone())
+            coef: simplify(&if s > 0.0 {
+                simplify::mul(self.coef.clone(), o.coef.clone())
             } else {
-                algebra::div(self.coef.clone(), o.coef.clone())
+                simplify::div(self.coef.clone(), o.coef.clone())
             }),
-            power: algebra::tidy(&if s > 0.0 {
-                algebra::add(self.power.clone(), o.power.clone())
+            power: simplify(&if s > 0.0 {
+                simplify::add(self.power.clone(), o.power.clone())
             } else {
-                algebra::sub(self.power.clone(), o.power.clone())
+                simplify::sub(self.power.clone(), o.power.clone())
             }),
             logp: if s > 0.0 {
                 self.logp + o.logp
@@ -288,7 +289,7 @@ impl Form {
     }
     fn scale(&self, k: Expr) -> Form {
         Form {
-            coef: algebra::tidy(&algebra::mul(k, self.coef.clone())),
+            coef: simplify(&simplify::mul(k, self.coef.clone())),
             ..self.clone()
         }
     }
@@ -346,7 +347,7 @@ impl Ctx<'_> {
             if algebra::key(a) == k {
                 return Sg::Known(*s);
             }
-            if algebra::key(&algebra::neg(a.clone())) == k {
+            if algebra::key(&simplify::neg(a.clone())) == k {
                 return Sg::Known(-*s);
             }
         }
@@ -495,7 +496,7 @@ impl Ctx<'_> {
                             std::cmp::Ordering::Less => Asy::Form(b.clone()),
                             std::cmp::Ordering::Equal => {
                                 let c =
-                                    algebra::tidy(&algebra::add(a.coef.clone(), b.coef.clone()));
+                                    simplify(&simplify::add(a.coef.clone(), b.coef.clone()));
                                 if algebra::is_zero(&c) {
                                     Asy::Unknown // leading terms cancel
                                 } else {
@@ -560,11 +561,11 @@ impl Ctx<'_> {
                     let n = a.expo.len().max(b.expo.len());
                     for k in (0..n).rev() {
                         let get = |f: &Form| f.expo.get(k).cloned().unwrap_or(Expr::Num(0.0));
-                        items.push((algebra::tidy(&algebra::sub(get(a), get(b))), false));
+                        items.push((simplify(&simplify::sub(get(a), get(b))), false));
                     }
                 }
                 Component::Power => items.push((
-                    algebra::tidy(&algebra::sub(a.power.clone(), b.power.clone())),
+                    simplify(&simplify::sub(a.power.clone(), b.power.clone())),
                     self.dir == Direction::ZeroPlus,
                 )),
                 Component::Log => items.push((Expr::Num((a.logp - b.logp) as f64), false)),
@@ -659,13 +660,13 @@ impl Ctx<'_> {
                 _ => 0,
             };
             Asy::Form(Form {
-                coef: algebra::tidy(&algebra::pow(f.coef.clone(), b.clone())),
-                power: algebra::tidy(&algebra::mul(f.power.clone(), b.clone())),
+                coef: simplify(&simplify::pow(f.coef.clone(), b.clone())),
+                power: simplify(&simplify::mul(f.power.clone(), b.clone())),
                 logp,
                 expo: f
                     .expo
                     .iter()
-                    .map(|e| algebra::tidy(&algebra::mul(e.clone(), b.clone())))
+                    .map(|e| simplify(&simplify::mul(e.clone(), b.clone())))
                     .collect(),
             })
         };
@@ -697,7 +698,7 @@ impl Ctx<'_> {
                 for (s, t) in self.tend(asm, a) {
                     match t {
                         Tend::Const(l) => {
-                            let v = algebra::tidy(&algebra::call(f, l));
+                            let v = simplify(&simplify::call(f, l));
                             let r = if algebra::is_zero(&v) {
                                 Asy::Unknown // f(L) = 0: the next order decides
                             } else {
@@ -770,7 +771,7 @@ impl Ctx<'_> {
 
     /// exp(sign·u) as a form, from u expanded as a (Laurent) polynomial in the variable.
     fn exp_form(&self, u: &Expr, sign: f64) -> Option<Form> {
-        let p = poly::expand(&algebra::mul(Expr::Num(sign), u.clone()));
+        let p = poly::expand(&simplify::mul(Expr::Num(sign), u.clone()));
         let v = self.v;
         let groups = p.group_by(&|a: &Atom| matches!(a, Atom::Var(i) if *i == v));
         let mut c0 = Expr::Num(0.0);
@@ -783,7 +784,7 @@ impl Ctx<'_> {
             let k = m.values().map(|(_, e)| *e).sum::<i32>();
             let (deg, coef) = match self.dir {
                 Direction::PosInf => (k, ce),
-                Direction::NegInf => (k, if k % 2 != 0 { algebra::neg(ce) } else { ce }),
+                Direction::NegInf => (k, if k % 2 != 0 { simplify::neg(ce) } else { ce }),
                 Direction::ZeroPlus => (-k, ce),
             };
             if deg == 0 {
@@ -793,11 +794,11 @@ impl Ctx<'_> {
                 if expo.len() < d {
                     expo.resize(d, Expr::Num(0.0));
                 }
-                expo[d - 1] = algebra::tidy(&coef);
+                expo[d - 1] = simplify(&coef);
             }
         }
         Some(Form {
-            coef: algebra::tidy(&algebra::call(Func::Exp, c0)),
+            coef: simplify(&simplify::call(Func::Exp, c0)),
             power: Expr::Num(0.0),
             logp: 0,
             expo,
@@ -834,7 +835,7 @@ impl Ctx<'_> {
         if a.logp != 0 {
             return None;
         }
-        let v = algebra::tidy(&algebra::call(Func::Log, a.coef.clone()));
+        let v = simplify(&simplify::call(Func::Log, a.coef.clone()));
         if algebra::is_zero(&v) {
             None
         } else {
@@ -902,7 +903,7 @@ impl Ctx<'_> {
                 Direction::NegInf => Leading::Exponential {
                     coef: a.coef.clone(),
                     power: a.power.clone(),
-                    rate: algebra::tidy(&algebra::neg(rate)),
+                    rate: simplify(&simplify::neg(rate)),
                 },
                 Direction::ZeroPlus => Leading::ExponentialInverse {
                     coef: a.coef.clone(),
@@ -940,32 +941,32 @@ impl Ctx<'_> {
             Expr::Var(_) => (Expr::Num(0.0), Expr::Num(1.0)),
             Expr::Neg(a) => {
                 let (a0, a1) = self.taylor(a)?;
-                (algebra::neg(a0), algebra::neg(a1))
+                (simplify::neg(a0), simplify::neg(a1))
             }
             Expr::Bin(op, a, b) => {
                 let (a0, a1) = self.taylor(a)?;
                 let (b0, b1) = self.taylor(b)?;
                 match op {
-                    BinOp::Add => (algebra::add(a0, b0), algebra::add(a1, b1)),
-                    BinOp::Sub => (algebra::sub(a0, b0), algebra::sub(a1, b1)),
+                    BinOp::Add => (simplify::add(a0, b0), simplify::add(a1, b1)),
+                    BinOp::Sub => (simplify::sub(a0, b0), simplify::sub(a1, b1)),
                     BinOp::Mul => (
-                        algebra::mul(a0.clone(), b0.clone()),
-                        algebra::add(algebra::mul(a0, b1), algebra::mul(a1, b0)),
+                        simplify::mul(a0.clone(), b0.clone()),
+                        simplify::add(simplify::mul(a0, b1), simplify::mul(a1, b0)),
                     ),
                     BinOp::Div => {
-                        if algebra::is_zero(&algebra::tidy(&b0)) {
+                        if algebra::is_zero(&simplify(&b0)) {
                             return None;
                         }
-                        let q = algebra::div(a0.clone(), b0.clone());
-                        let d = algebra::div(
-                            algebra::sub(algebra::mul(a1, b0.clone()), algebra::mul(a0, b1)),
-                            algebra::pow(b0, Expr::Num(2.0)),
+                        let q = simplify::div(a0.clone(), b0.clone());
+                        let d = simplify::div(
+                            simplify::sub(simplify::mul(a1, b0.clone()), simplify::mul(a0, b1)),
+                            simplify::pow(b0, Expr::Num(2.0)),
                         );
                         (q, d)
                     }
                     BinOp::Pow => {
                         if b.has_var(v) {
-                            if algebra::is_zero(&algebra::tidy(&a0)) {
+                            if algebra::is_zero(&simplify(&a0)) {
                                 return None;
                             }
                             let r = Expr::call(
@@ -975,16 +976,16 @@ impl Ctx<'_> {
                             return self.taylor(&r);
                         }
                         let natural = matches!(**b, Expr::Num(n) if n.fract() == 0.0 && n >= 0.0);
-                        if !natural && algebra::is_zero(&algebra::tidy(&a0)) {
+                        if !natural && algebra::is_zero(&simplify(&a0)) {
                             return None;
                         }
                         let k = (**b).clone();
                         (
-                            algebra::pow(a0.clone(), k.clone()),
-                            algebra::mul(
-                                algebra::mul(
+                            simplify::pow(a0.clone(), k.clone()),
+                            simplify::mul(
+                                simplify::mul(
                                     k.clone(),
-                                    algebra::pow(a0, algebra::sub(k, Expr::Num(1.0))),
+                                    simplify::pow(a0, simplify::sub(k, Expr::Num(1.0))),
                                 ),
                                 a1,
                             ),
@@ -994,13 +995,13 @@ impl Ctx<'_> {
             }
             Expr::Call(f, a) => {
                 let (a0, a1) = self.taylor(a)?;
-                let a0t = algebra::tidy(&a0);
+                let a0t = simplify(&a0);
                 if !facts(*f).smooth_at_zero && algebra::is_zero(&a0t) {
                     return None;
                 }
                 // f'(a0) from the facts table, with u' = 1 and f(a0) as a plain node
                 let d = derivative(*f, &a0t, &Expr::call(*f, a0t.clone()), Expr::Num(1.0));
-                (algebra::call(*f, a0t), algebra::mul(d, a1))
+                (simplify::call(*f, a0t), simplify::mul(d, a1))
             }
             _ => return None,
         })
@@ -1008,7 +1009,7 @@ impl Ctx<'_> {
 }
 
 fn ce_add(a: Expr, b: Expr) -> Expr {
-    algebra::add(a, b)
+    simplify::add(a, b)
 }
 
 fn sgn(v: f64) -> i8 {

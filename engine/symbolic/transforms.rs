@@ -20,6 +20,7 @@ use super::functions::facts;
 use super::linearity::affine_in;
 use super::model::Model;
 use super::poly::{self, Atom, Poly};
+use super::simplify::{self, simplify};
 use crate::rules::{rules, Guard, RewriteRule, TransformSpec};
 use serde::Serialize;
 
@@ -161,7 +162,7 @@ pub fn apply_transform(
     let input = match plateau {
         Some(a) => {
             let (_, g) = affine_in(&model.rhs, &[a])?;
-            algebra::tidy(g.first()?)
+            simplify(g.first()?)
         }
         None => model.rhs.clone(),
     };
@@ -173,8 +174,8 @@ pub fn apply_transform(
             _ => None,
         })
     };
-    let target = algebra::tidy(&subst(&spec.target, &response_var(model)));
-    let applied = algebra::tidy(&subst(&spec.apply, &input));
+    let target = simplify(&subst(&spec.target, &response_var(model)));
+    let applied = simplify(&subst(&spec.apply, &input));
     let tr = &rules().transforms;
     let sets: Vec<&[RewriteRule]> = spec
         .rule_sets
@@ -216,7 +217,7 @@ fn form_from_poly(p: &Poly, np: usize, plateau: Option<usize>) -> Option<Lineari
             .iter()
             .all(|q| nonlinear.contains(q))
         {
-            offset = algebra::add(offset, algebra::mul(coef, basis));
+            offset = simplify::add(offset, simplify::mul(coef, basis));
         } else {
             coefficients.push(Coefficient {
                 expr_in_params: coef,
@@ -268,7 +269,7 @@ pub fn solve_back_map(coefs: &[Expr], n_params: usize, known: &[usize]) -> BackM
             if let Some(e) = algebra::isolate(Expr::Param(n_params + k), &coefs[k], p, &mut n) {
                 steps.push(BackStep {
                     param: p,
-                    expr: algebra::tidy(&e),
+                    expr: simplify(&e),
                     from_coefficient: k,
                 });
                 notes.extend(n);
@@ -308,8 +309,8 @@ pub fn rewrite(e: &Expr, sets: &[&[RewriteRule]], expand_fns: &[Func], budget: &
     *budget -= 1;
     let e = match e {
         Expr::Num(_) | Expr::Var(_) | Expr::Param(_) => e.clone(),
-        Expr::Neg(a) => algebra::neg(rewrite(a, sets, expand_fns, budget)),
-        Expr::Bin(op, a, b) => algebra::bin(
+        Expr::Neg(a) => simplify::neg(rewrite(a, sets, expand_fns, budget)),
+        Expr::Bin(op, a, b) => simplify::bin(
             *op,
             rewrite(a, sets, expand_fns, budget),
             rewrite(b, sets, expand_fns, budget),
@@ -319,7 +320,7 @@ pub fn rewrite(e: &Expr, sets: &[&[RewriteRule]], expand_fns: &[Func], budget: &
             if expand_fns.contains(f) && algebra::sum_terms(&a).len() > 1 {
                 a = poly::expand(&a).to_expr();
             }
-            algebra::call(*f, a)
+            simplify::call(*f, a)
         }
     };
     for set in sets {
@@ -328,7 +329,7 @@ pub fn rewrite(e: &Expr, sets: &[&[RewriteRule]], expand_fns: &[Func], budget: &
             if !pattern_match(&rule.from, &e, &mut binds) || !guards_hold(rule, &binds) {
                 continue;
             }
-            let out = algebra::tidy(&rule.to.map(&|n| match n {
+            let out = simplify(&rule.to.map(&|n| match n {
                 Expr::Param(i) => binds.get(*i).cloned().flatten(),
                 _ => None,
             }));
@@ -438,7 +439,7 @@ pub fn cross_multiply(model: &Model) -> Option<LinearisedForm> {
                 basis,
             });
         } else {
-            offset = algebra::add(offset.clone(), algebra::mul(ce, basis));
+            offset = simplify::add(offset.clone(), simplify::mul(ce, basis));
         }
     };
     for (m, c) in p.group_by(&is_data) {
@@ -449,10 +450,10 @@ pub fn cross_multiply(model: &Model) -> Option<LinearisedForm> {
         let me = poly::mono_expr(&m);
         if me == lead_key {
             let v = c.as_number()?;
-            target = Some(algebra::mul(Expr::Num(v), algebra::mul(y.clone(), me)));
+            target = Some(simplify::mul(Expr::Num(v), simplify::mul(y.clone(), me)));
             continue;
         }
-        push(&c, algebra::neg(algebra::mul(y.clone(), me)));
+        push(&c, simplify::neg(simplify::mul(y.clone(), me)));
     }
     if coefficients.is_empty() {
         return None;
