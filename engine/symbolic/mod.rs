@@ -14,6 +14,7 @@ pub mod roles;
 pub mod simplify;
 pub mod tape;
 pub mod terms;
+pub mod transform_rules;
 pub mod transforms;
 
 pub use diff::{diff_param, diff_var};

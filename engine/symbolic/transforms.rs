@@ -21,7 +21,8 @@ use super::linearity::affine_in;
 use super::model::Model;
 use super::poly::{self, Atom, Poly};
 use super::simplify::{self, simplify};
-use crate::rules::{rules, Guard, RewriteRule, TransformSpec};
+use super::transform_rules::{transform_library, RewriteRule, TransformSpec};
+use crate::rules::Guard;
 use serde::Serialize;
 
 /// One new linear coefficient φ_k = `expr_in_params`, multiplying `basis`.
@@ -128,7 +129,7 @@ pub fn response_var(model: &Model) -> Expr {
 /// (fewest open parameters) first. Forms with no linear coefficient are dropped.
 pub fn linearise(model: &Model) -> Vec<LinearisedForm> {
     let mut out = Vec::new();
-    for spec in &rules().transforms.transforms {
+    for spec in &transform_library().transforms {
         if spec.plateau {
             for a in plateau_candidates(&model.rhs, model.n_params()) {
                 out.extend(apply_transform(model, spec, Some(a)));
@@ -176,7 +177,7 @@ pub fn apply_transform(
     };
     let target = simplify(&subst(&spec.target, &response_var(model)));
     let applied = simplify(&subst(&spec.apply, &input));
-    let tr = &rules().transforms;
+    let tr = transform_library();
     let sets: Vec<&[RewriteRule]> = spec
         .rule_sets
         .iter()
