@@ -242,21 +242,11 @@ struct ScaledInverse {
 fn scaled_inverse(j: &DMatrix<f64>) -> Option<ScaledInverse> {
     let (n, p) = j.shape();
     let rows = n.max(p);
-    let mut js = DMatrix::zeros(rows, p);
-    let mut scale = vec![1.0; p];
-    for k in 0..p {
-        let s = j.column(k).norm();
-        if s > 0.0 && s.is_finite() {
-            scale[k] = s;
-        }
-        for i in 0..n {
-            js[(i, k)] = j[(i, k)] / scale[k];
-        }
-    }
-    let svd = nalgebra::SVD::try_new(js, false, true, f64::EPSILON, 1000)?;
-    let vt = svd.v_t.as_ref()?;
-    let sv = &svd.singular_values;
-    let smax = sv.iter().cloned().fold(0.0, f64::max);
+    let svd = super::svd::scaled_svd(j, rows, false, 1000)?;
+    let scale = svd.scale.clone();
+    let vt = &svd.v_t;
+    let sv = &svd.singular;
+    let smax = svd.max();
     let smin = sv.iter().cloned().fold(f64::INFINITY, f64::min);
     let cut = rows as f64 * f64::EPSILON * smax;
     let mut cov = DMatrix::zeros(p, p);
