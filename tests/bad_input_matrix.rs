@@ -908,3 +908,44 @@ fn every_bad_input_is_refused_clearly() {
     }
     assert_eq!(m, n, "failures:\n{}", failures.join("\n"));
 }
+
+/// Data that are valid but drive the numerics to their limits: the binary may
+/// fit (exit 0) or refuse (exit 1, 2) but must never panic (101), and must say
+/// what went wrong. Issue 10: a finite Jacobian near 1e225 (x^100 at x = 86)
+/// made nalgebra's SVD overflow to NaN and panic ("Singular value was NaN").
+#[test]
+fn numerical_extremes_never_panic() {
+    let huge_jacobian = b"x,y\n0.18359375,86.3359375\n10.3359375,0.16796875\n0,0\n\
+10.3828125,0\n86.0390625,0\n86.3359375,43.19921875\n86.17578125,43.16796875\n\
+43.4765625,43.16796875\n86.16796875,21.16796875\n";
+    let c = fit(
+        "Jacobian near 1e225 (x^100)",
+        huge_jacobian,
+        "p1+p2+p3*x^p4+p5+p6",
+        &["--start", "p1=0,p2=0,p3=1,p4=100,p5=0,p6=0"],
+        &[],
+    );
+    let root = common::cli::scratch("matrix-numerics");
+    std::fs::create_dir_all(&root).unwrap();
+    let file = root.join("data.csv");
+    std::fs::write(&file, c.file.as_ref().unwrap()).unwrap();
+    let r = run_case(&c, &root, &file);
+    let _ = std::fs::remove_dir_all(&root);
+    assert!(!r.timed_out, "{}: killed by the watchdog", c.name);
+    assert!(
+        matches!(r.code, Some(0..=2)),
+        "{}: exit {:?}\n{}",
+        c.name,
+        r.code,
+        r.stderr
+    );
+    assert!(!r.stderr.contains("panicked"), "{}", r.stderr);
+    // The sum of squares overflows there: the fit must not claim a minimum.
+    assert!(r.stdout.contains("overflow"), "{}", r.stdout);
+    assert!(!r.stdout.contains("(converged)"), "{}", r.stdout);
+    assert!(
+        r.stderr.contains("foothold: warning:"),
+        "no warning: {}",
+        r.stderr
+    );
+}

@@ -308,6 +308,10 @@ pub fn estimate_rows(summary: &FitSummary) -> Vec<EstimateRow> {
             std_error: p.std_error.is_finite().then_some(p.std_error),
             interval: (p.ci_low.is_finite() && p.ci_high.is_finite())
                 .then_some((p.ci_low, p.ci_high)),
+            note: p
+                .unidentified_reason
+                .filter(|_| p.identifiable == Some(false))
+                .map(|c| crate::fit::stats::unidentified_text(c).to_string()),
         })
         .collect()
 }

@@ -49,6 +49,9 @@ pub struct EstimateRow {
     pub std_error: Option<f64>,
     /// 95% interval `(lower, upper)`, when it could be computed.
     pub interval: Option<(f64, f64)>,
+    /// Shown beside the estimate when the data do not determine it
+    /// (e.g. "not identifiable: std. error > 1000 x |estimate|").
+    pub note: Option<String>,
 }
 
 /// Everything the HTML report shows; plain values so any caller can fill it.
@@ -407,11 +410,15 @@ fn estimates(h: &mut String, rows: &[EstimateRow]) {
         let ci = r.interval.map_or("—".to_string(), |(lo, hi)| {
             format!("{} to {}", num(lo, 6), num(hi, 6))
         });
+        let note = r.note.as_ref().map_or(String::new(), |n| {
+            format!(" <em class=\"unidentified\">({})</em>", escape_html(n))
+        });
         let _ = writeln!(
             h,
-            "<tr><td><code>{}</code></td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            "<tr><td><code>{}</code></td><td class=\"num\">{}{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
             escape_html(&r.parameter),
             num(r.estimate, 6),
+            note,
             se,
             ci
         );
@@ -527,12 +534,14 @@ mod tests {
                     estimate: 4.98123,
                     std_error: Some(0.0312),
                     interval: Some((4.917, 5.046)),
+                    note: None,
                 },
                 EstimateRow {
                     parameter: "k".into(),
                     estimate: 2.0211,
                     std_error: None,
                     interval: None,
+                    note: Some("not identifiable: on a singular direction of the Jacobian".into()),
                 },
             ],
             fit_summary: vec![("residual sum of squares".into(), "0.0412".into())],
@@ -592,6 +601,7 @@ mod tests {
             estimate: f64::NAN,
             std_error: Some(f64::INFINITY),
             interval: None,
+            note: None,
         }];
         let html = render_report(&input);
         assert!(!html.contains("<script") && !html.contains("<svg"));
