@@ -159,11 +159,13 @@ pub(crate) enum Class {
     Text,
 }
 
-/// The class of a text cell under this decimal mark.
+/// The class of a text cell under this decimal mark; `1,5` counts as a
+/// number under either mark (it is no column name: a data row of a file
+/// whose decimal comma was not given).
 pub(crate) fn class_of(cell: &str, mark: DecimalMark) -> Class {
     if cell.is_empty() {
         Class::Empty
-    } else if parse_number(cell, mark).is_ok() {
+    } else if parse_number(cell, mark).is_ok() || comma_number(cell) {
         Class::Number
     } else {
         Class::Text
