@@ -161,7 +161,7 @@ fn replicate_layouts_give_identical_estimates() {
         "{err}"
     );
     assert!(
-        err.contains("stacked rep1, rep2, rep3 into 'signal': 26 observations from 9 rows (1 empty cells left out)"),
+        err.contains("stacked rep1, rep2, rep3 into 'signal': 26 observations from 9 rows (1 empty cell left out)"),
         "{err}"
     );
     let (_, _, err) = run(&[

@@ -46,7 +46,8 @@ pub struct InputArgs {
     pub x: Option<String>,
     /// Response column when the formula has no left-hand side [default: y]. Several
     /// replicate columns, as a list (rep1,rep2,rep3), a range (rep1..rep3) or a
-    /// pattern (rep*), are pooled into one response: one observation per non-empty cell.
+    /// pattern (rep*), are pooled into one response (one observation per non-empty
+    /// cell), named by the formula's left-hand side, else y.
     #[arg(long = "y", value_name = "COLUMN|COLUMNS")]
     pub y: Option<String>,
     /// Workbook sheet, by name or 1-based number [default: the first].

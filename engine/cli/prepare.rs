@@ -91,12 +91,13 @@ pub fn read_input(input: &InputArgs, verbose: bool, err: &mut dyn Write) -> Resu
         if verbose {
             let _ = writeln!(
                 err,
-                "foothold: {option} {spec}: stacked {} into '{value}'{}: {} observations from {} rows ({} empty cells left out)",
+                "foothold: {option} {spec}: stacked {} into '{value}'{}: {} observations from {} rows ({} empty cell{} left out)",
                 columns.join(", "),
                 label.map(|l| format!(", one group per column ('{l}')")).unwrap_or_default(),
                 stacked.data.n_rows(),
                 stacked.rows_in,
-                stacked.empty_cells
+                stacked.empty_cells,
+                if stacked.empty_cells == 1 { "" } else { "s" }
             );
         }
         data = stacked.data;
