@@ -324,6 +324,12 @@ pub fn batch_groups(
         return Err(Error::Usage(format!("--by {by}: the column has no values")));
     }
     let mut warnings = Vec::new();
+    if groups.len() > 1 && groups.iter().all(|(_, rows)| rows.len() == 1) {
+        warnings.push(format!(
+            "--by {by} makes {} groups of one row each: almost certainly not the column that names the groups (each fit has one point)",
+            groups.len()
+        ));
+    }
     if missing > 0 {
         warnings.push(format!(
             "skipped {missing} row{} with an empty '{by}' cell",
