@@ -104,6 +104,25 @@ pub fn place(
                 }
             }
         }
+        if best.is_some_and(|(cost, _)| cost >= 4) {
+            // Every place covers something: try a few nearby places up and
+            // down from the first two candidates, charged for the distance.
+            let step = (l.size.1 / 2).max(1);
+            for (j, &(x, y)) in l.candidates.iter().take(2).enumerate() {
+                for k in 1..=6 {
+                    for dir in [1, -1] {
+                        let c = (x, y + dir * k * step);
+                        let r = Rect::at(c, l.size);
+                        if free(&r, &taken) {
+                            let cost = covered(&r) * 4 + l.candidates.len() + 2 * k as usize + j;
+                            if best.map_or(true, |(b, _)| cost < b) {
+                                best = Some((cost, c));
+                            }
+                        }
+                    }
+                }
+            }
+        }
         if best.is_none() {
             // Slide from the first candidate (kept inside horizontally) in
             // steps of half a line, nearest first.
