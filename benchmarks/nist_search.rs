@@ -30,9 +30,10 @@ use std::time::{Duration, Instant};
 /// The certified arctan model assumes a branch of arctan in (0, π): with the
 /// principal branch the same optimum has b1 smaller by exactly 1 (see
 /// tests/nist_given_starts.rs). Benchmarks may name reference problems; the engine may not.
-fn align_branch(name: &str, est: &mut [f64], cert: &[f64]) {
-    if name == "Roszman1" && (est[0] + 1.0 - cert[0]).abs() < (est[0] - cert[0]).abs() {
-        est[0] += 1.0;
+/// `b1` is the index of b1 in the model's parameter order.
+fn align_branch(name: &str, b1: usize, est: &mut [f64], cert: &[f64]) {
+    if name == "Roszman1" && (est[b1] + 1.0 - cert[b1]).abs() < (est[b1] - cert[b1]).abs() {
+        est[b1] += 1.0;
     }
 }
 
@@ -41,6 +42,7 @@ fn align_branch(name: &str, est: &mut [f64], cert: &[f64]) {
 /// with canonical signs, which need not be the certified ones.
 fn lre_of(
     name: &str,
+    b1: usize,
     est: &[f64],
     cert: &[f64],
     images: &[Vec<usize>],
@@ -58,7 +60,7 @@ fn lre_of(
         }
         for g in images {
             let mut e = apply(g, &signed);
-            align_branch(name, &mut e, cert);
+            align_branch(name, b1, &mut e, cert);
             best = best.max(strd::min_lre(&e, cert));
         }
     }
@@ -121,6 +123,9 @@ fn main() {
             eprintln!("{name}: formula does not bind");
             continue;
         };
+        // Published values matched to the model's parameters by name.
+        let p = p.in_order_of(&model.params);
+        let b1 = p.index("b1");
         let x: Vec<Vec<f64>> = model.vars.iter().map(|v| p.column(v)).collect();
         let np = model.params.len();
         let images = group(&find_symmetries(&model), np);
@@ -130,7 +135,7 @@ fn main() {
             continue;
         };
         let score = |est: Option<Vec<f64>>| {
-            est.map(|e| lre_of(name, &e, &p.certified, &images, &flips))
+            est.map(|e| lre_of(name, b1, &e, &p.certified, &images, &flips))
                 .unwrap_or(0.0)
         };
 

@@ -15,9 +15,15 @@ use foothold::fit::problem::Problem;
 use foothold::fit::stats::summarize;
 use foothold::symbolic::Model;
 
-/// Fits one problem from the given start: estimates, standard errors, ssr.
+/// The model of one problem as foothold binds it.
+fn model_of(p: &StrdProblem) -> Model {
+    Model::new(strd::formula(&p.name), &p.columns, Some("y")).expect("model")
+}
+
+/// Fits one problem from the given start (in the model's parameter order):
+/// estimates, standard errors, ssr.
 fn fit_from(p: &StrdProblem, start: &[f64]) -> (Vec<f64>, Vec<f64>, f64) {
-    let model = Model::new(strd::formula(&p.name), &p.columns, Some("y")).expect("model");
+    let model = model_of(p);
     let x: Vec<Vec<f64>> = model.vars.iter().map(|v| p.column(v)).collect();
     let names = model.params.clone();
     let problem = Problem::from_columns(model, x, p.column("y")).expect("problem");
@@ -33,9 +39,10 @@ fn fit_from(p: &StrdProblem, start: &[f64]) -> (Vec<f64>, Vec<f64>, f64) {
 /// Adjusts for a published convention the engine need not share: the certified b1 of
 /// the arctan model assumes a branch of arctan in (0, π); with the principal branch
 /// (−π/2, π/2) the same optimum has b1 smaller by exactly 1 (arctan(u)/π differs by 1).
-fn align_branch(name: &str, est: &mut [f64], cert: &[f64]) {
-    if name == "Roszman1" && (est[0] + 1.0 - cert[0]).abs() < (est[0] - cert[0]).abs() {
-        est[0] += 1.0;
+fn align_branch(p: &StrdProblem, est: &mut [f64]) {
+    let (k, cert) = (p.index("b1"), &p.certified);
+    if p.name == "Roszman1" && (est[k] + 1.0 - cert[k]).abs() < (est[k] - cert[k]).abs() {
+        est[k] += 1.0;
     }
 }
 
@@ -55,11 +62,13 @@ fn nist_strd_from_published_starts() {
     );
     for name in strd::PROBLEMS {
         let p = strd::load(name).unwrap_or_else(|| panic!("cannot read {}.dat", name));
+        // Published values matched to the model's parameters by name.
+        let p = p.in_order_of(&model_of(&p).params);
         let mut row = Vec::new();
         let (mut ssr_lre, mut se_lre) = (11.0_f64, 11.0_f64);
         for (k, start) in p.starts.iter().enumerate() {
             let (mut est, se, ssr) = fit_from(&p, start);
-            align_branch(name, &mut est, &p.certified);
+            align_branch(&p, &mut est);
             ssr_lre = ssr_lre.min(strd::lre(ssr, p.certified_ssr));
             se_lre = se_lre.min(strd::min_lre(&se, &p.certified_sd));
             let l = strd::min_lre(&est, &p.certified);
@@ -115,11 +124,23 @@ fn strd_reader_reads_a_minimal_file() {
     let text = "header\n  b1 =   1   2   3.5E+00  1E-01\n  b2 = 4 5 6 7\n\
                 Residual Sum of Squares:  1.25E+00\nData:   y   x\n  1.0  2.0\n  3.0  4.0\n";
     let f = strd::parse("t", text).expect("parses");
+    assert_eq!(f.names, vec!["b1", "b2"]);
     assert_eq!(f.starts, [vec![1.0, 4.0], vec![2.0, 5.0]]);
     assert_eq!(f.certified, vec![3.5, 6.0]);
     assert_eq!(f.certified_sd, vec![0.1, 7.0]);
     assert_eq!(f.certified_ssr, 1.25);
     assert_eq!(f.values, vec![vec![1.0, 3.0], vec![2.0, 4.0]]);
+    // Rearranged by name, every published vector follows the names.
+    let g = f.in_order_of(&["b2".to_string(), "b1".to_string()]);
+    assert_eq!(g.names, vec!["b2", "b1"]);
+    assert_eq!(g.starts, [vec![4.0, 1.0], vec![5.0, 2.0]]);
+    assert_eq!(g.certified, vec![6.0, 3.5]);
+    assert_eq!(g.certified_sd, vec![7.0, 0.1]);
+    assert_eq!(g.index("b1"), 1);
+    // MGH17's formula names b4 before b3: the model's order is not the
+    // published one, so a check by position would compare the wrong values.
+    let mgh17 = Model::new(strd::formula("MGH17"), &["y".into(), "x".into()], Some("y")).unwrap();
+    assert_eq!(mgh17.params, vec!["b1", "b2", "b4", "b3", "b5"]);
 }
 
 #[test]
