@@ -220,6 +220,23 @@ mod tests {
             ("shape", 3.0),
         ];
         assert!((value("weibull-growth", &w, 0.0) - 2.0).abs() < 1e-12);
+        // Both dose-response curves start at baseline and are half-way at
+        // x_half (log dose) or ec50 (dose).
+        let ll = [
+            ("baseline", 4.0),
+            ("full_effect", 90.0),
+            ("ec50", 2.5),
+            ("slope", 1.8),
+        ];
+        assert!((value("log-logistic-4", &ll, 0.0) - 4.0).abs() < 1e-12);
+        assert!((value("log-logistic-4", &ll, 2.5) - 47.0).abs() < 1e-12);
+        let l4 = [
+            ("baseline", 4.0),
+            ("full_effect", 90.0),
+            ("x_half", 0.4),
+            ("slope", 1.8),
+        ];
+        assert!((value("logistic-4", &l4, -40.0) - 4.0).abs() < 1e-12);
         // The Richards curve is steepest at x_inflection (central differences).
         let r = [
             ("plateau", 10.0),
