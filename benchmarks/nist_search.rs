@@ -32,6 +32,7 @@ use std::time::{Duration, Instant};
 /// with canonical signs, which need not be the certified ones.
 fn lre_of(
     name: &str,
+    b1: usize,
     est: &[f64],
     cert: &[f64],
     images: &[Vec<usize>],
@@ -49,7 +50,7 @@ fn lre_of(
         }
         for g in images {
             let mut e = apply(g, &signed);
-            strd::align_branch(name, &mut e, cert);
+            strd::align_branch(name, b1, &mut e, cert);
             best = best.max(strd::min_lre(&e, cert));
         }
     }
@@ -111,6 +112,9 @@ fn main() {
             eprintln!("{name}: formula does not bind");
             continue;
         };
+        // Published values matched to the model's parameters by name.
+        let p = p.in_order_of(&model.params);
+        let b1 = p.index("b1");
         let x: Vec<Vec<f64>> = model.vars.iter().map(|v| p.column(v)).collect();
         let np = model.params.len();
         let images = group(&find_symmetries(&model), np);
@@ -120,7 +124,7 @@ fn main() {
             continue;
         };
         let score = |est: Option<Vec<f64>>| {
-            est.map(|e| lre_of(name, &e, &p.certified, &images, &flips))
+            est.map(|e| lre_of(name, b1, &e, &p.certified, &images, &flips))
                 .unwrap_or(0.0)
         };
 

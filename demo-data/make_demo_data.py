@@ -66,8 +66,9 @@ write("creep_specimens.csv", ["specimen", "hours", "strain"],
 
 # 5. Plate-reader inhibition by six invented compounds (text labels), 11 doses
 # in duplicate wells, normalised so that no inhibition reads 0:
-# response = top/(1 + exp(-slope*(log_dose - mid))), log_dose = log10 of the
-# dose in uM. Values (top, mid, slope) per compound.
+# response = plateau/(1 + exp(-rate*(log_dose - x_half))), the library's
+# logistic-3, log_dose = log10 of the dose in uM. Values (plateau, x_half,
+# rate) per compound.
 compounds = {
     "KX-101": (94.0, -0.40, 2.6),
     "KX-102": (88.0, 0.35, 1.9),
@@ -77,11 +78,11 @@ compounds = {
     "ref std": (96.0, -0.75, 2.4),
 }
 rows = []
-for name, (top, mid, slope) in compounds.items():
+for name, (plateau, x_half, rate) in compounds.items():
     for i in range(11):
         ld = -3.0 + 0.5 * i
         for _ in range(2):
-            mu = top / (1 + math.exp(-slope * (ld - mid)))
+            mu = plateau / (1 + math.exp(-rate * (ld - x_half)))
             y = mu + rng.gauss(0, 2.5)
             rows.append([name, f"{ld:g}", f"{y:.1f}"])
 write("plate_dose_response.csv", ["compound", "log_dose", "response"], rows,

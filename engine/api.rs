@@ -10,7 +10,7 @@
 //!     Some(&[("a", 5.0), ("k", 1.0)]),
 //! )
 //! .unwrap();
-//! assert!((fit.parameters[1].estimate - 0.5).abs() < 1e-6); // k (parameters in natural order: a, k)
+//! assert!((fit.parameters[1].estimate - 0.5).abs() < 1e-6); // k (order of first appearance: a, k)
 //! ```
 
 use crate::auto_start::{infer_and_search, starts_for};
@@ -63,7 +63,7 @@ fn dataset(columns: &[(&str, &[f64])]) -> Result<Dataset, Error> {
 ///   its default budget, as the `fit` command does).
 ///
 /// Returns the fit's summary: estimates with standard errors and intervals
-/// (parameters in natural order, `b2` before `b10`), sums of squares,
+/// (parameters in order of first appearance in the formula), sums of squares,
 /// convergence and warnings. A fit that ran but did not converge is still
 /// `Ok`; check `converged`.
 pub fn fit(
@@ -90,7 +90,8 @@ fn problem(columns: &[(&str, &[f64])], formula: &str) -> Result<Problem, Error> 
 /// [`fit`]) from the model and the data alone, without fitting: the best
 /// start with each parameter's derivation in words (`parameters`), the other
 /// candidate starts, each parameter's natural range and the features found.
-/// Values are in the model's parameter order (`start`), natural order.
+/// Values are in the model's parameter order (`start`): order of first
+/// appearance in the formula.
 pub fn infer(columns: &[(&str, &[f64])], formula: &str) -> Result<Inference, Error> {
     let problem = problem(columns, formula)?;
     crate::infer::infer(&problem, &InferOptions::default())
@@ -196,7 +197,7 @@ mod tests {
         let cols: [(&str, &[f64]); 2] = [("t", &t), ("y", &y)];
         let inf = infer(&cols, "y = c + a*exp(-k*t)").unwrap();
         let names: Vec<&str> = inf.parameters.iter().map(|p| p.name.as_str()).collect();
-        assert_eq!(names, ["a", "c", "k"]);
+        assert_eq!(names, ["c", "a", "k"], "order of first appearance");
         assert!(inf.parameters.iter().all(|p| !p.derivation.is_empty()));
         // Inference alone lands close: k within 5% of 0.4.
         assert!((inf.start[2] - 0.4).abs() < 0.02, "{:?}", inf.start);

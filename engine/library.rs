@@ -179,7 +179,8 @@ mod tests {
             .map(|n| if n == "vmax" { vmax } else { km })
             .collect();
         assert!((model.rhs.eval(&p, &[km]) - vmax / 2.0).abs() < 1e-12);
-        // The four-parameter logistic at x = mid is half-way between bottom and top.
+        // The four-parameter logistic at x = x_half is half-way between
+        // baseline and full_effect.
         let m = find("logistic-4").unwrap();
         let model =
             crate::symbolic::Model::new(&m.formula, &["x".into(), "y".into()], None).unwrap();
@@ -187,13 +188,65 @@ mod tests {
             .params
             .iter()
             .map(|n| match n.as_str() {
-                "bottom" => 2.0,
-                "top" => 10.0,
-                "mid" => 0.5,
+                "baseline" => 2.0,
+                "full_effect" => 10.0,
+                "x_half" => 0.5,
                 _ => 3.0,
             })
             .collect();
         assert!((model.rhs.eval(&p, &[0.5]) - 6.0).abs() < 1e-12);
+        // The three-parameter logistic is half its plateau at x_half; the
+        // Gompertz curve is plateau*exp(-shift) at x = 0; the Weibull growth
+        // curve starts at plateau - rise (all common practice).
+        let value = |name: &str, at: &[(&str, f64)], x: f64| {
+            let m = find(name).unwrap();
+            let model =
+                crate::symbolic::Model::new(&m.formula, &["x".into(), "y".into()], None).unwrap();
+            let p: Vec<f64> = model
+                .params
+                .iter()
+                .map(|n| at.iter().find(|(k, _)| k == n).unwrap().1)
+                .collect();
+            model.rhs.eval(&p, &[x])
+        };
+        let l3 = [("plateau", 80.0), ("x_half", 1.5), ("rate", 2.0)];
+        assert!((value("logistic-3", &l3, 1.5) - 40.0).abs() < 1e-12);
+        let g = [("plateau", 50.0), ("shift", 3.0), ("rate", 0.7)];
+        assert!((value("gompertz", &g, 0.0) - 50.0 * (-3.0f64).exp()).abs() < 1e-12);
+        let w = [
+            ("plateau", 9.0),
+            ("rise", 7.0),
+            ("scale", 2.0),
+            ("shape", 3.0),
+        ];
+        assert!((value("weibull-growth", &w, 0.0) - 2.0).abs() < 1e-12);
+        // Both dose-response curves start at baseline and are half-way at
+        // x_half (log dose) or ec50 (dose).
+        let ll = [
+            ("baseline", 4.0),
+            ("full_effect", 90.0),
+            ("ec50", 2.5),
+            ("slope", 1.8),
+        ];
+        assert!((value("log-logistic-4", &ll, 0.0) - 4.0).abs() < 1e-12);
+        assert!((value("log-logistic-4", &ll, 2.5) - 47.0).abs() < 1e-12);
+        let l4 = [
+            ("baseline", 4.0),
+            ("full_effect", 90.0),
+            ("x_half", 0.4),
+            ("slope", 1.8),
+        ];
+        assert!((value("logistic-4", &l4, -40.0) - 4.0).abs() < 1e-12);
+        // The Richards curve is steepest at x_inflection (central differences).
+        let r = [
+            ("plateau", 10.0),
+            ("x_inflection", 4.0),
+            ("rate", 1.3),
+            ("nu", 0.4),
+        ];
+        let slope =
+            |x: f64| (value("richards", &r, x + 1e-4) - value("richards", &r, x - 1e-4)) / 2e-4;
+        assert!(slope(4.0) > slope(3.9) && slope(4.0) > slope(4.1));
         assert!(find("no-such-model").is_none());
     }
 

@@ -54,7 +54,8 @@ fn creep_specimens_fit_one_curve_each() {
     let lines: Vec<&str> = csv.lines().collect();
     assert_eq!(
         lines[0],
-        "group,status,n_obs,iterations,ssr,a_estimate,a_std_error,e0_estimate,e0_std_error,m_estimate,m_std_error,a_identifiable,e0_identifiable,m_identifiable,message"
+        "group,status,n_obs,iterations,ssr,e0_estimate,e0_std_error,a_estimate,a_std_error,m_estimate,m_std_error,e0_identifiable,a_identifiable,m_identifiable,message",
+        "parameter columns in order of first appearance in the formula"
     );
     assert_eq!(lines.len(), 4, "{csv}");
     let want = [("1", 0.110, 0.42), ("2", 0.125, 0.45), ("3", 0.098, 0.40)];
@@ -63,7 +64,7 @@ fn creep_specimens_fit_one_curve_each() {
         assert_eq!(c[0], g);
         assert_eq!(c[1], "converged");
         assert_eq!(c[2], "23");
-        let e0_fit: f64 = c[7].parse().unwrap();
+        let e0_fit: f64 = c[5].parse().unwrap();
         let m_fit: f64 = c[9].parse().unwrap();
         assert!((e0_fit - e0).abs() < 0.012, "specimen {g}: e0 {e0_fit}");
         assert!((m_fit - m).abs() < 0.04, "specimen {g}: m {m_fit}");
@@ -229,7 +230,7 @@ fn plate_groups(model: &str) -> Vec<serde_json::Value> {
 #[test]
 fn text_labels_and_no_starts_fit_every_compound() {
     // demo-data/plate_dose_response.csv: six compounds with text labels,
-    // generated with (asym, xmid, r) per compound (demo-data/README.md);
+    // generated with (plateau, x_half, rate) per compound (demo-data/README.md);
     // no --start: inference and the multistart search give every group its starts.
     let groups = plate_groups("logistic-3");
     let want = [
@@ -241,17 +242,20 @@ fn text_labels_and_no_starts_fit_every_compound() {
         ("ref std", 96.0, -0.75, 2.4),
     ];
     assert_eq!(groups.len(), want.len());
-    for (g, (name, asym, xmid, r)) in groups.iter().zip(want) {
+    for (g, (name, plateau, x_half, rate)) in groups.iter().zip(want) {
         assert_eq!(g["group"], name, "order of first appearance");
         assert_eq!(g["status"], "converged", "{g}");
         assert_eq!(g["n_obs"], 22);
         let p = g["parameters"].as_array().unwrap();
+        // Parameters in the library's documented order: plateau, x_half, rate.
+        let names: Vec<&str> = p.iter().map(|q| q["name"].as_str().unwrap()).collect();
+        assert_eq!(names, ["plateau", "x_half", "rate"]);
         let est = |k: usize| p[k]["estimate"].as_f64().unwrap();
         let se = |k: usize| p[k]["std_error"].as_f64().unwrap();
-        // Parameters in natural order: asym, r, xmid. Noise sd 2.5: each
-        // estimate within 4 standard errors of its generating value.
+        // Noise sd 2.5: each estimate within 4 standard errors of its
+        // generating value.
         println!(
-            "{name}: asym {:.3} ± {:.3}, r {:.3} ± {:.3}, xmid {:.4} ± {:.4}",
+            "{name}: plateau {:.3} ± {:.3}, x_half {:.4} ± {:.4}, rate {:.3} ± {:.3}",
             est(0),
             se(0),
             est(1),
@@ -260,14 +264,18 @@ fn text_labels_and_no_starts_fit_every_compound() {
             se(2)
         );
         assert!(
-            (est(0) - asym).abs() < 4.0 * se(0),
-            "{name} asym {}",
+            (est(0) - plateau).abs() < 4.0 * se(0),
+            "{name} plateau {}",
             est(0)
         );
-        assert!((est(1) - r).abs() < 4.0 * se(1), "{name} r {}", est(1));
         assert!(
-            (est(2) - xmid).abs() < 4.0 * se(2),
-            "{name} xmid {}",
+            (est(1) - x_half).abs() < 4.0 * se(1),
+            "{name} x_half {}",
+            est(1)
+        );
+        assert!(
+            (est(2) - rate).abs() < 4.0 * se(2),
+            "{name} rate {}",
             est(2)
         );
     }
@@ -345,10 +353,11 @@ fn text_labels_with_empty_cells_and_a_text_cell_in_a_used_column() {
 
 #[test]
 fn four_parameter_logistic_reads_every_curve_the_same_way_round() {
-    // bottom + (top - bottom)/(1 + exp(slope*(mid - x))) gives the same curve
-    // with bottom and top swapped and slope negated. The search treats the two
-    // as one minimum and reports the image with slope ≥ 0, so that across a
-    // batch `top` is always the response at high dose (as the library says).
+    // baseline + (full_effect - baseline)/(1 + exp(slope*(x_half - x))) gives
+    // the same curve with baseline and full_effect swapped and slope negated.
+    // The search treats the two as one minimum and reports the image with
+    // slope ≥ 0, so that across a batch `full_effect` is always the response
+    // at high dose (as the library says).
     // demo-data/plate_dose_response.csv (invented) rises from about 0 to the
     // plateau of each compound (74–97 % inhibition).
     let groups = plate_groups("logistic-4");
@@ -363,13 +372,13 @@ fn four_parameter_logistic_reads_every_curve_the_same_way_round() {
                 .and_then(|p| p["estimate"].as_f64())
                 .unwrap()
         };
-        let (bottom, top, slope) = (est("bottom"), est("top"), est("slope"));
+        let (baseline, full, slope) = (est("baseline"), est("full_effect"), est("slope"));
         println!(
-            "{}: bottom {bottom:.3} top {top:.3} slope {slope:.3}",
+            "{}: baseline {baseline:.3} full_effect {full:.3} slope {slope:.3}",
             g["group"]
         );
         assert_eq!(g["status"], "converged", "{g}");
         assert!(slope > 0.0, "{g}");
-        assert!(top > 60.0 && bottom.abs() < 10.0, "{g}");
+        assert!(full > 60.0 && baseline.abs() < 10.0, "{g}");
     }
 }

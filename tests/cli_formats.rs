@@ -31,13 +31,20 @@ fn fit_args<'a>(data: &'a str, format: &'a str) -> Vec<&'a str> {
         "--model",
         "logistic-4",
         "--start",
-        "bottom=1,top=7,mid=3.5,slope=1",
+        "baseline=1,full_effect=7,x_half=3.5,slope=1",
         "--format",
         format,
     ]
 }
 
-const TRUE: [(&str, f64); 4] = [("bottom", 2.0), ("mid", 4.0), ("slope", 1.5), ("top", 8.0)];
+/// The true values in the library's documented order of `logistic-4`, the
+/// order every format lists the parameters in.
+const TRUE: [(&str, f64); 4] = [
+    ("baseline", 2.0),
+    ("full_effect", 8.0),
+    ("x_half", 4.0),
+    ("slope", 1.5),
+];
 
 #[test]
 fn every_format_gives_the_same_estimates() {
@@ -95,8 +102,22 @@ fn every_format_gives_the_same_estimates() {
 
     let (code, table, _) = run(&fit_args(p, "table"));
     assert_eq!(code, 0);
-    let row = table.lines().find(|l| l.starts_with("top ")).unwrap();
+    let row = table
+        .lines()
+        .find(|l| l.starts_with("full_effect "))
+        .unwrap();
     assert!(row.contains("8.000000"), "{table}");
+    // The table lists the parameters in the same documented order.
+    let order: Vec<&str> = table
+        .lines()
+        .filter_map(|l| l.split_whitespace().next())
+        .filter(|w| TRUE.iter().any(|(n, _)| n == w))
+        .collect();
+    assert_eq!(
+        order,
+        ["baseline", "full_effect", "x_half", "slope"],
+        "{table}"
+    );
     let _ = std::fs::remove_dir_all(&d);
 }
 

@@ -174,3 +174,163 @@ fn mapping_mistakes_exit_two() {
         );
     }
 }
+
+/// The parameter names of one library model in `foothold models --format yaml`.
+fn listed_parameters(yaml: &serde_yaml_ng::Value, model: &str) -> Vec<String> {
+    yaml["models"]
+        .as_sequence()
+        .unwrap()
+        .iter()
+        .find(|m| m["name"].as_str() == Some(model))
+        .unwrap_or_else(|| panic!("no {model} in the library"))["parameters"]
+        .as_sequence()
+        .unwrap()
+        .iter()
+        .map(|p| p["name"].as_str().unwrap().to_string())
+        .collect()
+}
+
+#[test]
+fn models_shows_descriptive_names_in_the_documented_order() {
+    let (code, yaml, err) = run(&["models", "--format", "yaml"]);
+    assert_eq!(code, 0, "{err}");
+    let y: serde_yaml_ng::Value = serde_yaml_ng::from_str(&yaml).unwrap();
+    for (model, want) in [
+        ("saturation-growth", &["plateau", "k"][..]),
+        ("logistic-3", &["plateau", "x_half", "rate"]),
+        ("gompertz", &["plateau", "shift", "rate"]),
+        ("richards", &["plateau", "x_inflection", "rate", "nu"]),
+        ("weibull-growth", &["plateau", "rise", "scale", "shape"]),
+        (
+            "logistic-4",
+            &["baseline", "full_effect", "x_half", "slope"],
+        ),
+        (
+            "logistic-5",
+            &["baseline", "full_effect", "x_centre", "slope", "s"],
+        ),
+        (
+            "log-logistic-4",
+            &["baseline", "full_effect", "ec50", "slope"],
+        ),
+        ("michaelis-menten", &["vmax", "km"]),
+    ] {
+        assert_eq!(listed_parameters(&y, model), want, "{model}");
+    }
+    // The names the library gave up appear in no model's parameters.
+    for m in y["models"].as_sequence().unwrap() {
+        for p in m["parameters"].as_sequence().unwrap() {
+            let name = p["name"].as_str().unwrap();
+            assert!(
+                !["asym", "xmid", "drop", "bottom", "top", "mid"].contains(&name),
+                "{name} in {}",
+                m["name"].as_str().unwrap()
+            );
+        }
+    }
+    // The table shows the formulas with the new names; CSV lists the
+    // parameters in the same order.
+    let (_, table, _) = run(&["models"]);
+    let line = table
+        .lines()
+        .find(|l| l.starts_with("logistic-3 "))
+        .unwrap();
+    assert!(
+        line.contains("plateau/(1 + exp(-rate*(x - x_half)))"),
+        "{line}"
+    );
+    let (_, csv, _) = run(&["models", "--format", "csv"]);
+    let line = csv
+        .lines()
+        .find(|l| l.starts_with("weibull-growth,"))
+        .unwrap();
+    assert!(line.contains(",plateau rise scale shape,"), "{line}");
+}
+
+#[test]
+fn a_library_fit_lists_parameters_in_the_documented_order() {
+    // michaelis-menten documents vmax, then km; the order of --start does
+    // not matter. Demo data generated with vmax = 42.5, km = 1.8.
+    let args = |format: &'static str| {
+        [
+            "fit",
+            "demo-data/enzyme_assay.csv",
+            "--model",
+            "michaelis-menten",
+            "--x",
+            "substrate",
+            "--y",
+            "rate",
+            "--start",
+            "km=1,vmax=30",
+            "--format",
+            format,
+        ]
+    };
+    let (code, json, err) = run(&args("json"));
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let names: Vec<&str> = v["parameters"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["name"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, ["vmax", "km"]);
+    let vmax = v["parameters"][0]["estimate"].as_f64().unwrap();
+    assert!((vmax - 42.5).abs() < 1.0, "vmax {vmax}");
+    let (code, table, _) = run(&args("table"));
+    assert_eq!(code, 0);
+    let row = |n: &str| table.lines().position(|l| l.starts_with(&format!("{n} ")));
+    assert!(row("vmax").unwrap() < row("km").unwrap(), "{table}");
+    let (code, csv, _) = run(&args("csv"));
+    assert_eq!(code, 0);
+    let first: Vec<&str> = csv
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').next().unwrap())
+        .collect();
+    assert_eq!(first, ["vmax", "km"], "{csv}");
+}
+
+#[test]
+fn a_written_formula_lists_parameters_in_order_of_first_appearance() {
+    // tamb, t0, k: neither alphabetical (k, t0, tamb) nor the order of --start.
+    // Demo data generated with ambient 22.5 and 22.5 + 157.5 = 180 at x = 0.
+    let formula = "temp = tamb + (t0 - tamb)*exp(-k*minutes)";
+    let names = |json: &str, key: &str| -> Vec<String> {
+        let v: serde_json::Value = serde_json::from_str(json).unwrap();
+        v[key]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|p| p["name"].as_str().unwrap().to_string())
+            .collect()
+    };
+    let (code, out, err) = run(&[
+        "fit",
+        "demo-data/part_cooling.csv",
+        "--model",
+        formula,
+        "--start",
+        "k=0.1,t0=170,tamb=20",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(names(&out, "parameters"), ["tamb", "t0", "k"]);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let tamb = v["parameters"][0]["estimate"].as_f64().unwrap();
+    assert!((tamb - 22.5).abs() < 2.0, "tamb {tamb}");
+    // Inference lists its starts in the same order.
+    let (code, out, err) = run(&[
+        "infer",
+        "demo-data/part_cooling.csv",
+        "--model",
+        formula,
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(names(&out, "parameters"), ["tamb", "t0", "k"]);
+}

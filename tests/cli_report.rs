@@ -138,8 +138,9 @@ fn batch_report_holds_the_table_the_overlay_and_the_caution() {
             "legend entry {name}"
         );
     }
-    // Demo data generated with KX-117 asym = 97, r = 3.2, xmid = -1.30
-    // (demo-data/README.md); the row shows estimates ± standard errors near them.
+    // Demo data generated with KX-117 plateau = 97, x_half = -1.30, rate = 3.2
+    // (demo-data/README.md); the row shows estimates ± standard errors near
+    // them, in the library's documented order.
     let row = html
         .lines()
         .find(|l| l.contains("<td>KX-117</td>"))
@@ -150,10 +151,10 @@ fn batch_report_holds_the_table_the_overlay_and_the_caution() {
         .take(3)
         .map(|c| c.split(" ± ").next().unwrap().parse().unwrap())
         .collect();
-    println!("KX-117 asym, r, xmid = {cells:?}");
+    println!("KX-117 plateau, x_half, rate = {cells:?}");
     assert!((cells[0] - 97.0).abs() < 3.0, "{row}");
-    assert!((cells[1] - 3.2).abs() < 0.6, "{row}");
-    assert!((cells[2] + 1.30).abs() < 0.08, "{row}");
+    assert!((cells[1] + 1.30).abs() < 0.08, "{row}");
+    assert!((cells[2] - 3.2).abs() < 0.6, "{row}");
     let _ = std::fs::remove_dir_all(&d);
 }
 

@@ -15,9 +15,15 @@ use foothold::fit::problem::Problem;
 use foothold::fit::stats::summarize;
 use foothold::symbolic::Model;
 
-/// Fits one problem from the given start: estimates, standard errors, ssr.
+/// The model of one problem as foothold binds it.
+fn model_of(p: &StrdProblem) -> Model {
+    Model::new(strd::formula(&p.name), &p.columns, Some("y")).expect("model")
+}
+
+/// Fits one problem from the given start (in the model's parameter order):
+/// estimates, standard errors, ssr.
 fn fit_from(p: &StrdProblem, start: &[f64]) -> (Vec<f64>, Vec<f64>, f64) {
-    let model = Model::new(strd::formula(&p.name), &p.columns, Some("y")).expect("model");
+    let model = model_of(p);
     let x: Vec<Vec<f64>> = model.vars.iter().map(|v| p.column(v)).collect();
     let names = model.params.clone();
     let problem = Problem::from_columns(model, x, p.column("y")).expect("problem");
@@ -45,11 +51,13 @@ fn nist_strd_from_published_starts() {
     );
     for name in strd::PROBLEMS {
         let p = strd::load(name).unwrap_or_else(|| panic!("cannot read {}.dat", name));
+        // Published values matched to the model's parameters by name.
+        let p = p.in_order_of(&model_of(&p).params);
         let mut row = Vec::new();
         let (mut ssr_lre, mut se_lre) = (11.0_f64, 11.0_f64);
         for (k, start) in p.starts.iter().enumerate() {
             let (mut est, se, ssr) = fit_from(&p, start);
-            strd::align_branch(name, &mut est, &p.certified);
+            strd::align_branch(&p.name, p.index("b1"), &mut est, &p.certified);
             ssr_lre = ssr_lre.min(strd::lre(ssr, p.certified_ssr));
             se_lre = se_lre.min(strd::min_lre(&se, &p.certified_sd));
             let l = strd::min_lre(&est, &p.certified);
@@ -105,11 +113,23 @@ fn strd_reader_reads_a_minimal_file() {
     let text = "header\n  b1 =   1   2   3.5E+00  1E-01\n  b2 = 4 5 6 7\n\
                 Residual Sum of Squares:  1.25E+00\nData:   y   x\n  1.0  2.0\n  3.0  4.0\n";
     let f = strd::parse("t", text).expect("parses");
+    assert_eq!(f.names, vec!["b1", "b2"]);
     assert_eq!(f.starts, [vec![1.0, 4.0], vec![2.0, 5.0]]);
     assert_eq!(f.certified, vec![3.5, 6.0]);
     assert_eq!(f.certified_sd, vec![0.1, 7.0]);
     assert_eq!(f.certified_ssr, 1.25);
     assert_eq!(f.values, vec![vec![1.0, 3.0], vec![2.0, 4.0]]);
+    // Rearranged by name, every published vector follows the names.
+    let g = f.in_order_of(&["b2".to_string(), "b1".to_string()]);
+    assert_eq!(g.names, vec!["b2", "b1"]);
+    assert_eq!(g.starts, [vec![4.0, 1.0], vec![5.0, 2.0]]);
+    assert_eq!(g.certified, vec![6.0, 3.5]);
+    assert_eq!(g.certified_sd, vec![7.0, 0.1]);
+    assert_eq!(g.index("b1"), 1);
+    // MGH17's formula names b4 before b3: the model's order is not the
+    // published one, so a check by position would compare the wrong values.
+    let mgh17 = Model::new(strd::formula("MGH17"), &["y".into(), "x".into()], Some("y")).unwrap();
+    assert_eq!(mgh17.params, vec!["b1", "b2", "b4", "b3", "b5"]);
 }
 
 #[test]

@@ -85,8 +85,10 @@ pub fn resolve_model(model: &str, x: Option<&str>) -> Result<ModelSpec, Error> {
 
 /// Binds a resolved model to the data's columns with the response `y`
 /// (`--y`, default `y` when the formula has no left-hand side). A library
-/// parameter that happens to share a column's name is refused, since it
-/// would silently become a variable.
+/// model lists its parameters in the library's documented order, a written
+/// formula in order of first appearance. A library parameter that happens
+/// to share a column's name is refused, since it would silently become a
+/// variable.
 pub fn bind_model(spec: &ModelSpec, data: &Dataset, y: Option<&str>) -> Result<Model, Error> {
     if let Some(m) = spec.library {
         if let Some(p) = m.parameters.iter().find(|p| data.has_column(&p.name)) {
@@ -96,12 +98,14 @@ pub fn bind_model(spec: &ModelSpec, data: &Dataset, y: Option<&str>) -> Result<M
             )));
         }
     }
-    Ok(Model::bind(
-        &spec.text,
-        spec.parsed.clone(),
-        &data.columns,
-        y,
-    )?)
+    let model = Model::bind(&spec.text, spec.parsed.clone(), &data.columns, y)?;
+    Ok(match spec.library {
+        Some(m) => {
+            let order: Vec<&str> = m.parameters.iter().map(|p| p.name.as_str()).collect();
+            model.with_param_order(&order)
+        }
+        None => model,
+    })
 }
 
 #[cfg(test)]
@@ -125,8 +129,13 @@ mod tests {
         assert!(s.library.is_some());
         let m = bind_model(&s, &data(&["substrate", "rate"]), Some("rate")).unwrap();
         assert_eq!(m.vars, vec!["substrate"]);
-        assert_eq!(m.params, vec!["km", "vmax"]);
+        assert_eq!(m.params, vec!["vmax", "km"]);
         assert_eq!(m.response, "rate");
+        // A library model comes in the library's documented order, whatever
+        // the formula's own order.
+        let s = resolve_model("logistic-4", Some("log_dose")).unwrap();
+        let m = bind_model(&s, &data(&["log_dose", "y"]), None).unwrap();
+        assert_eq!(m.params, vec!["baseline", "full_effect", "x_half", "slope"]);
         // A name containing x is not touched: only the variable x is renamed.
         let s = resolve_model("y = xa*exp(-k*x) + x2", Some("t")).unwrap();
         assert_eq!(s.text, "y = xa*exp(-k*t) + x2");

@@ -72,13 +72,8 @@ pub fn exchangeable(model: &Model, scales: &[ParamScale]) -> Vec<Exchange> {
             {
                 continue;
             }
-            let (pa, pb) = (&comps[i].0, &comps[j].0);
-            let mapped = ea.map(&|e| match e {
-                Expr::Param(q) => pa.iter().position(|x| x == q).map(|k| Expr::Param(pb[k])),
-                _ => None,
-            });
-            if algebra::is_zero(&simplify::sub(mapped, sum(&comps[j].1))) {
-                blocks.push(pb.clone());
+            if let Some(pb) = pairing(&comps[i].0, &comps[j].0, &ea, &sum(&comps[j].1)) {
+                blocks.push(pb);
                 used[j] = true;
             }
         }
@@ -102,6 +97,55 @@ pub fn exchangeable(model: &Model, scales: &[ParamScale]) -> Vec<Exchange> {
                 descending,
                 magnitude,
             });
+        }
+    }
+    out
+}
+
+/// Most parameters in a block for which every pairing with another block is tried.
+const PAIRING_MAX: usize = 4;
+
+/// The order of `pb` under which the terms `ea` (parameters `pa`) become the
+/// terms `eb` when each `pa[k]` is renamed `pb[k]`, if any: `pb` in index
+/// order first, then, for blocks of up to four parameters, every other order,
+/// so that the pairing does not hang on how the parameters are numbered
+/// (`a*exp(-k*x) + exp(-c*x)*b` pairs a with b and k with c).
+fn pairing(pa: &[usize], pb: &[usize], ea: &Expr, eb: &Expr) -> Option<Vec<usize>> {
+    let pairs = |order: &[usize]| {
+        let mapped = ea.map(&|e| match e {
+            Expr::Param(q) => pa
+                .iter()
+                .position(|x| x == q)
+                .map(|k| Expr::Param(order[k])),
+            _ => None,
+        });
+        algebra::is_zero(&simplify::sub(mapped, eb.clone()))
+    };
+    if pairs(pb) {
+        return Some(pb.to_vec());
+    }
+    if pb.len() > PAIRING_MAX {
+        return None;
+    }
+    orders(pb).into_iter().skip(1).find(|o| pairs(o))
+}
+
+/// Every order of `items`, the given one first.
+fn orders(items: &[usize]) -> Vec<Vec<usize>> {
+    if items.len() <= 1 {
+        return vec![items.to_vec()];
+    }
+    let mut out = Vec::new();
+    for (i, &first) in items.iter().enumerate() {
+        let rest: Vec<usize> = items
+            .iter()
+            .enumerate()
+            .filter(|&(j, _)| j != i)
+            .map(|(_, &v)| v)
+            .collect();
+        for mut tail in orders(&rest) {
+            tail.insert(0, first);
+            out.push(tail);
         }
     }
     out
@@ -187,15 +231,38 @@ mod tests {
         let sc = param_scales(&pr, &roles(&m));
         let ex = exchangeable(&m, &sc);
         assert_eq!(ex.len(), 1);
-        // params: a1, a2, c, k1, k2
-        let mut p = vec![1.0, 2.0, 0.5, 3.0, 0.1];
-        let mut why: Vec<String> = ["a1 from x", "a2 from y", "c", "k1: rate", "k2: rate"]
+        // params in order of first appearance: a1, k1, a2, k2, c
+        assert_eq!(m.params, vec!["a1", "k1", "a2", "k2", "c"]);
+        let mut p = vec![1.0, 3.0, 2.0, 0.1, 0.5];
+        let mut why: Vec<String> = ["a1 from x", "k1: rate", "a2 from y", "k2: rate", "c"]
             .iter()
             .map(|s| s.to_string())
             .collect();
         canonical(&ex, &m.params, &mut p, &mut why);
-        assert_eq!(p, vec![2.0, 1.0, 0.5, 0.1, 3.0]);
+        assert_eq!(p, vec![2.0, 0.1, 1.0, 3.0, 0.5]);
         assert_eq!(why[0], "a1 from y");
-        assert_eq!(why[3], "k1: rate");
+        assert_eq!(why[1], "k1: rate");
+    }
+
+    #[test]
+    fn blocks_pair_up_whatever_the_numbering_of_their_parameters() {
+        // Parameters a, k, c, b in order of first appearance: the second term
+        // names its rate before its amplitude, so index order would pair a
+        // with c; the pairing follows the terms instead (a with b, k with c).
+        let cols = vec!["x".to_string(), "y".to_string()];
+        let m = Model::new("a*exp(-k*x) + exp(-c*x)*b", &cols, None).unwrap();
+        assert_eq!(m.params, vec!["a", "k", "c", "b"]);
+        let x: Vec<f64> = (0..10).map(|i| i as f64).collect();
+        let pr = Problem::from_columns(m.clone(), vec![x.clone()], x).unwrap();
+        let ex = exchangeable(&m, &param_scales(&pr, &roles(&m)));
+        assert_eq!(ex.len(), 1, "{ex:?}");
+        assert_eq!(ex[0].blocks, vec![vec![0, 1], vec![3, 2]]);
+        // a = 5, k = 2 (fast), c = 0.3 (slow), b = 7: the slow term comes first.
+        let mut p = vec![5.0, 2.0, 0.3, 7.0];
+        let mut why = vec![String::new(); 4];
+        canonical(&ex, &m.params, &mut p, &mut why);
+        assert_eq!(p, vec![7.0, 0.3, 2.0, 5.0]);
+        assert_eq!(orders(&[1, 2, 3]).len(), 6);
+        assert_eq!(orders(&[4, 9])[0], vec![4, 9]);
     }
 }

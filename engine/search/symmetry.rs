@@ -149,9 +149,9 @@ pub fn find_sign_flips(model: &Model) -> Vec<Vec<usize>> {
 }
 
 /// Swaps of two parameters that leave `model.rhs` unchanged only together
-/// with a change of sign of a third, e.g. (bottom, top, slope) in
-/// `bottom + (top - bottom)/(1 + exp(slope*(mid - x)))`: the same curve is
-/// read from either end. Tested numerically as in [`find_symmetries`], for
+/// with a change of sign of a third, e.g. (baseline, full_effect, slope) in
+/// `baseline + (full_effect - baseline)/(1 + exp(slope*(x_half - x)))`: the
+/// same curve is read from either end. Tested numerically as in [`find_symmetries`], for
 /// every pair that is not interchangeable by itself and every third
 /// parameter that cannot change sign by itself. Returned as (permutation,
 /// parameter whose sign changes), in a fixed order.
@@ -379,11 +379,11 @@ mod tests {
 
     #[test]
     fn swapped_exponential_terms() {
-        // params sorted: a1, a2, k1, k2
+        // params in order of first appearance: a1, k1, a2, k2
         let m = model("a1*exp(-k1*x) + a2*exp(-k2*x)", &["x", "y"]);
         let s = find_symmetries(&m);
-        assert_eq!(s, vec![vec![1, 0, 3, 2]]);
-        assert_eq!(transpositions(&s[0]), vec![(0, 1), (2, 3)]);
+        assert_eq!(s, vec![vec![2, 3, 0, 1]]);
+        assert_eq!(transpositions(&s[0]), vec![(0, 2), (1, 3)]);
     }
 
     #[test]
@@ -407,10 +407,10 @@ mod tests {
 
     #[test]
     fn sign_changes_that_leave_the_model_unchanged() {
-        // params: a, c, m, w. The width enters squared; a/w (with w squared
+        // params: a, m, w, c. The width enters squared; a/w (with w squared
         // elsewhere) makes (a, w) flip together only when w appears linearly.
         let m = model("a*exp(-(x-m)^2/w^2) + c", &["x", "y"]);
-        assert_eq!(find_sign_flips(&m), vec![vec![3]]);
+        assert_eq!(find_sign_flips(&m), vec![vec![2]]);
         let r = model("(a/b)*exp(-0.5*((x-c)/b)^2)", &["x", "y"]);
         assert_eq!(find_sign_flips(&r), vec![vec![0, 1]]);
         assert!(find_sign_flips(&model("a*exp(-k*x)", &["x", "y"])).is_empty());

@@ -108,8 +108,8 @@ fn two_minima_found_and_ranked_with_shares() {
     );
 }
 
-/// y = 3·e^(−0.5x) + e^(−2x) at 25 points on [0, 6]; parameters (a1, a2, k1, k2)
-/// in the order a model "a1*exp(-k1*x) + a2*exp(-k2*x)" binds them.
+/// y = 3·e^(−0.5x) + e^(−2x) at 25 points on [0, 6]; parameters (a1, a2, k1, k2),
+/// the order [`biexp_symmetries`] puts its model's parameters in.
 fn biexponential() -> impl Residuals {
     let x: Vec<f64> = (0..25).map(|i| 0.25 * i as f64).collect();
     let y: Vec<f64> = x
@@ -139,7 +139,9 @@ fn biexponential() -> impl Residuals {
 
 fn biexp_symmetries() -> Vec<Vec<usize>> {
     let cols = names(&["x", "y"]);
-    let m = Model::new("a1*exp(-k1*x) + a2*exp(-k2*x)", &cols, None).unwrap();
+    let m = Model::new("a1*exp(-k1*x) + a2*exp(-k2*x)", &cols, None)
+        .unwrap()
+        .with_param_order(&["a1", "a2", "k1", "k2"]);
     assert_eq!(m.params, names(&["a1", "a2", "k1", "k2"]));
     find_symmetries(&m)
 }

@@ -232,9 +232,10 @@ mod tests {
         let s = separate_model(&m);
         assert_eq!(names(&m, &s.linear), ["b1", "b2", "b3"]);
         assert_eq!(names(&m, &s.nonlinear), ["b4", "b5"]);
-        // g_b1 = 1, g_b2 = exp(-x b4) at x=1.5, b4=0.4
+        // g_b1 = 1, g_b2 = exp(-x b4) at x=1.5, b4=0.4 (parameters b1, b2,
+        // b4, b3, b5 in order of first appearance)
         assert_eq!(s.basis[0].eval(&[0.0; 5], &[1.5]), 1.0);
-        let g = s.basis[1].eval(&[0.0, 0.0, 0.0, 0.4, 0.0], &[1.5]);
+        let g = s.basis[1].eval(&[0.0, 0.0, 0.4, 0.0, 0.0], &[1.5]);
         assert!((g - (-0.6f64).exp()).abs() < 1e-15);
         check_identity(&m, &s);
 

@@ -32,7 +32,9 @@ pub enum ModelError {
 pub struct Model {
     /// The formula as the user wrote it.
     pub text: String,
-    /// Parameter names; `Expr::Param(i)` is `params[i]`. Sorted naturally (b2 before b10).
+    /// Parameter names; `Expr::Param(i)` is `params[i]`. In order of first
+    /// appearance in the formula (see [`Model::bind`]), or in a library
+    /// model's documented order ([`Model::with_param_order`]).
     pub params: Vec<String>,
     /// Predictor column names; `Expr::Var(i)` is `vars[i]`.
     pub vars: Vec<String>,
@@ -67,7 +69,11 @@ impl Model {
         Model::bind(text, parsed, columns, response)
     }
 
-    /// Binds an already parsed formula.
+    /// Binds an already parsed formula. Parameters are listed in order of
+    /// first appearance in the formula's text (`vmax*x/(km + x)` gives vmax,
+    /// km; `b1 + b10*x + b2*x^2` gives b1, b10, b2). Two names cannot first
+    /// appear at the same place, so no tie can arise; natural order (b2
+    /// before b10) would break one.
     pub fn bind(
         text: &str,
         parsed: ParsedFormula,
@@ -143,7 +149,15 @@ impl Model {
                 &params.iter().collect::<Vec<_>>(),
             )));
         }
-        params.sort_by(|a, b| natural_cmp(a, b));
+        // `parsed.names` holds each name at its first appearance, left to
+        // right, so `params` is already in order of first appearance; the
+        // stable sort keeps it and orders only equal positions naturally.
+        let first_at = |n: &String| parsed.names.iter().position(|m| m == n);
+        params.sort_by(|a, b| {
+            first_at(a)
+                .cmp(&first_at(b))
+                .then_with(|| natural_cmp(a, b))
+        });
         let rename = |e: &Expr| -> Option<Expr> {
             if let Expr::Param(i) = e {
                 let n = &parsed.names[*i];
@@ -169,6 +183,37 @@ impl Model {
             lhs,
             rhs,
         })
+    }
+
+    /// The same model with its parameters listed in `order` (a library
+    /// model's documented order): the names in `order` first, as listed,
+    /// then any others in their present order; `Expr::Param` indices are
+    /// renumbered to match, so the model computes the same values.
+    pub fn with_param_order(mut self, order: &[&str]) -> Model {
+        let mut params: Vec<String> = order
+            .iter()
+            .filter(|n| self.params.iter().any(|p| p == *n))
+            .map(|n| n.to_string())
+            .collect();
+        params.dedup();
+        for p in &self.params {
+            if !params.contains(p) {
+                params.push(p.clone());
+            }
+        }
+        let new_index: Vec<usize> = self
+            .params
+            .iter()
+            .map(|p| params.iter().position(|q| q == p).unwrap_or(0))
+            .collect();
+        let renumber = |e: &Expr| match e {
+            Expr::Param(i) => new_index.get(*i).map(|&j| Expr::Param(j)),
+            _ => None,
+        };
+        self.rhs = self.rhs.map(&renumber);
+        self.lhs = self.lhs.as_ref().map(|l| l.map(&renumber));
+        self.params = params;
+        self
     }
 
     /// Number of parameters.
@@ -235,13 +280,53 @@ mod tests {
     #[test]
     fn binds_columns_and_parameters() {
         let m = Model::new("b1 + b10*x + b2*x^2", &cols(&["x", "y"]), None).unwrap();
-        assert_eq!(m.params, vec!["b1", "b2", "b10"]);
+        // Order of first appearance, not natural or alphabetical order.
+        assert_eq!(m.params, vec!["b1", "b10", "b2"]);
         assert_eq!(m.vars, vec!["x"]);
         assert_eq!(m.response, "y");
         assert_eq!(
-            m.rhs.eval(&[1.0, 2.0, 3.0], &[2.0]),
+            m.rhs.eval(&[1.0, 3.0, 2.0], &[2.0]),
             1.0 + 3.0 * 2.0 + 2.0 * 4.0
         );
+        let m = Model::new("vmax*x/(km + x)", &cols(&["x", "y"]), None).unwrap();
+        assert_eq!(m.params, vec!["vmax", "km"]);
+        // A name used again later keeps its first place; a left-hand side
+        // and columns take no place among the parameters.
+        let m = Model::new(
+            "log(y) = top - (top - low)*exp(-k*x)",
+            &cols(&["x", "y"]),
+            None,
+        )
+        .unwrap();
+        assert_eq!(m.params, vec!["top", "low", "k"]);
+    }
+
+    #[test]
+    fn a_documented_order_renumbers_the_parameters() {
+        let m = Model::new(
+            "bottom + (top - bottom)/(1 + exp(slope*(mid - x)))",
+            &cols(&["x", "y"]),
+            None,
+        )
+        .unwrap();
+        assert_eq!(m.params, vec!["bottom", "top", "slope", "mid"]);
+        let at = |m: &Model, x: f64, named: &[(&str, f64)]| {
+            let p: Vec<f64> = m
+                .params
+                .iter()
+                .map(|n| named.iter().find(|(k, _)| k == n).unwrap().1)
+                .collect();
+            m.rhs.eval(&p, &[x])
+        };
+        let truth = [("bottom", 2.0), ("top", 9.0), ("slope", 1.7), ("mid", 0.4)];
+        let before = at(&m, 1.1, &truth);
+        let r = m.with_param_order(&["bottom", "top", "mid", "slope"]);
+        assert_eq!(r.params, vec!["bottom", "top", "mid", "slope"]);
+        assert_eq!(at(&r, 1.1, &truth), before);
+        // Names not listed follow in their present order; unknown ones are ignored.
+        let r = r.with_param_order(&["slope", "nothing"]);
+        assert_eq!(r.params, vec!["slope", "bottom", "top", "mid"]);
+        assert_eq!(at(&r, 1.1, &truth), before);
     }
 
     #[test]

@@ -335,9 +335,9 @@ mod tests {
                 ..
             } => {
                 assert_eq!(*bump, BumpKind::Lorentzian);
-                // params sort as (a, c, w)
-                assert!((centre.eval(&[1.0, 3.0, 0.5], &[]) - 3.0).abs() < 1e-12);
-                assert!((width.eval(&[1.0, 3.0, 0.5], &[]) - 0.5).abs() < 1e-12);
+                // params in order of first appearance: (a, w, c)
+                assert!((centre.eval(&[1.0, 0.5, 3.0], &[]) - 3.0).abs() < 1e-12);
+                assert!((width.eval(&[1.0, 0.5, 3.0], &[]) - 0.5).abs() < 1e-12);
             }
             s => panic!("{:?}", s),
         }

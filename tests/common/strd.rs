@@ -15,7 +15,10 @@ pub struct StrdProblem {
     pub columns: Vec<String>,
     /// Column-major data.
     pub values: Vec<Vec<f64>>,
-    /// Start 1 (far) and Start 2 (near), in parameter order b1, b2, ...
+    /// The parameters' names as published (`b1`, `b2`, ...), in the order of
+    /// the vectors below.
+    pub names: Vec<String>,
+    /// Start 1 (far) and Start 2 (near), in the order of `names`.
     pub starts: [Vec<f64>; 2],
     /// Certified parameter values (11 significant digits).
     pub certified: Vec<f64>,
@@ -30,6 +33,30 @@ impl StrdProblem {
     pub fn column(&self, name: &str) -> Vec<f64> {
         let j = self.columns.iter().position(|c| c == name).expect("column");
         self.values[j].clone()
+    }
+
+    /// The index of a parameter by its published name (`b1`).
+    pub fn index(&self, name: &str) -> usize {
+        self.names
+            .iter()
+            .position(|n| n == name)
+            .unwrap_or_else(|| panic!("{}: no parameter {name}", self.name))
+    }
+
+    /// The published starts and certified values rearranged into `params`'s
+    /// order, matched by name: a model lists its parameters in order of first
+    /// appearance in the formula (`b4` before `b3` in MGH17), not as published.
+    pub fn in_order_of(&self, params: &[String]) -> StrdProblem {
+        assert_eq!(params.len(), self.names.len(), "{}: parameters", self.name);
+        let at: Vec<usize> = params.iter().map(|n| self.index(n)).collect();
+        let pick = |v: &[f64]| at.iter().map(|&k| v[k]).collect::<Vec<f64>>();
+        StrdProblem {
+            names: params.to_vec(),
+            starts: [pick(&self.starts[0]), pick(&self.starts[1])],
+            certified: pick(&self.certified),
+            certified_sd: pick(&self.certified_sd),
+            ..self.clone()
+        }
     }
 }
 
@@ -115,13 +142,14 @@ pub fn require_dir() -> Option<PathBuf> {
 /// the arctan model (Roszman1) assumes a branch of arctan in (0, π); with the principal
 /// branch (−π/2, π/2) the same optimum has b1 smaller by exactly 1 (arctan(u)/π differs
 /// by 1). Tests and benchmarks may name reference problems; the engine may not.
-pub fn align_branch(name: &str, est: &mut [f64], cert: &[f64]) {
+/// `b1` is the index of b1 in the model's parameter order.
+pub fn align_branch(name: &str, b1: usize, est: &mut [f64], cert: &[f64]) {
     if name == "Roszman1"
-        && !est.is_empty()
-        && !cert.is_empty()
-        && (est[0] + 1.0 - cert[0]).abs() < (est[0] - cert[0]).abs()
+        && b1 < est.len()
+        && b1 < cert.len()
+        && (est[b1] + 1.0 - cert[b1]).abs() < (est[b1] - cert[b1]).abs()
     {
-        est[0] += 1.0;
+        est[b1] += 1.0;
     }
 }
 
@@ -140,6 +168,7 @@ pub fn load(name: &str) -> Option<StrdProblem> {
 /// Parses the text of one StRD file.
 pub fn parse(name: &str, text: &str) -> Option<StrdProblem> {
     let lines: Vec<&str> = text.lines().collect();
+    let mut names = Vec::new();
     let mut starts = [Vec::new(), Vec::new()];
     let mut certified = Vec::new();
     let mut certified_sd = Vec::new();
@@ -147,9 +176,10 @@ pub fn parse(name: &str, text: &str) -> Option<StrdProblem> {
     for l in &lines {
         let t = l.trim_start();
         if t.starts_with('b') && t.contains('=') {
-            let rhs = t.split_once('=').map(|(_, r)| r).unwrap_or("");
+            let (lhs, rhs) = t.split_once('=').unwrap_or((t, ""));
             let v = numbers(rhs);
             if v.len() >= 4 {
+                names.push(lhs.trim().to_string());
                 starts[0].push(v[0]);
                 starts[1].push(v[1]);
                 certified.push(v[2]);
@@ -186,6 +216,7 @@ pub fn parse(name: &str, text: &str) -> Option<StrdProblem> {
         name: name.to_string(),
         columns,
         values,
+        names,
         starts,
         certified,
         certified_sd,

@@ -294,9 +294,10 @@ mod tests {
             (finite(&case_at(&m, Direction::ZeroPlus, &ps), &ps) - 2.0 * 0.25f64.exp()).abs()
                 < 1e-12
         );
-        // exp(-k*(x-c)) at +inf: coefficient exp(k c); parameters sort as (c, k)
+        // exp(-k*(x-c)) at +inf: coefficient exp(k c); parameters (k, c) in
+        // order of first appearance
         let m = model("exp(-k*(x-c))");
-        let ps = [2.0, 0.5];
+        let ps = [0.5, 2.0];
         match case_at(&m, Direction::PosInf, &ps).leading {
             Leading::Exponential { coef, rate, .. } => {
                 assert!((coef.eval(&ps, &[]) - 1f64.exp()).abs() < 1e-12);
