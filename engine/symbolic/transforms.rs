@@ -4,7 +4,8 @@
 //! For each transform T listed in `rules/transforms.yaml` (identity, log,
 //! reciprocal, logit against a plateau parameter, ...), T(f) is built
 //! symbolically and rewritten with the YAML rules (log of a product → sum of
-//! logs, log(exp u) → u, 1/(u/v) → v/u, ...), expanded into
+//! logs, 1/(u/v) → v/u, ...; log(exp u) → u is already done by the simplifying
+//! constructors every node is rebuilt with), expanded into
 //! `Σ coefficient(params) × basis(data)` and grouped by basis. Each coefficient
 //! φ_k is a new linear unknown; parameters left inside a basis stay nonlinear
 //! (a separable form in the transformed space, Golub & Pereyra 1973). A
