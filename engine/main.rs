@@ -1,5 +1,8 @@
-//! The `foothold` command: everything lives in the library; errors are rendered once, here.
+//! The `foothold` command: a thin edge over the engine (`foothold`) and the
+//! report (`foothold_report`); errors are rendered once, here.
+
+mod cli;
 
 fn main() {
-    std::process::exit(foothold::cli::run());
+    std::process::exit(cli::run());
 }

@@ -1,7 +1,7 @@
 //! The command line's shape (clap 4 derive): one struct per subcommand, built
 //! from shared groups so that later commands extend them easily.
 
-use crate::data::{parse_decimal, parse_separator, DecimalMark, Separator};
+use foothold::data::{parse_decimal, parse_separator, DecimalMark, Separator};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use std::path::PathBuf;
 

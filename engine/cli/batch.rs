@@ -8,15 +8,15 @@ use super::output::emit;
 use super::prepare::{bind_rows, model_for, run_fit, starting_values_searched};
 use super::rank_cmd::search_options;
 use super::Outcome;
-use crate::data::Dataset;
-use crate::error::Error;
-use crate::fit::problem::Problem;
-use crate::report::fit_table::{format_number, SIGNIFICANT};
-use crate::report::formats::{
+use foothold::data::Dataset;
+use foothold::error::Error;
+use foothold::fit::problem::Problem;
+use foothold_report::fit_table::{format_number, SIGNIFICANT};
+use foothold_report::formats::{
     aligned_table, csv_line, csv_number, identifiable_cell, to_json, to_yaml, Align,
 };
-use crate::search::SearchOptions;
-use crate::symbolic::Model;
+use foothold::search::SearchOptions;
+use foothold::symbolic::Model;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
 use serde::Serialize;
@@ -563,7 +563,7 @@ mod tests {
 
     #[test]
     fn text_labels_group_in_order_of_first_appearance() {
-        let d = crate::data::parse_delimited(
+        let d = foothold::data::parse_delimited(
             "well,x,y\nB12,1,2\nA1,2,3\n,3,4\nB12,4,5\nPC-3,5,6\n",
             "p.csv",
         )

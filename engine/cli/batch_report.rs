@@ -10,16 +10,16 @@ use super::output::emit;
 use super::prepare::starts_given;
 use super::report_cmd::report_date;
 use super::Outcome;
-use crate::data::Dataset;
-use crate::error::Error;
-use crate::report::assemble::fit_sheet;
-use crate::report::batch_html::{render_batch_report, BatchGroupRow, BatchReportInput};
-use crate::report::html::formula_with_response;
-use crate::report::plot::{
+use foothold::data::Dataset;
+use foothold::error::Error;
+use foothold_report::assemble::fit_sheet;
+use foothold_report::batch_html::{render_batch_report, BatchGroupRow, BatchReportInput};
+use foothold_report::html::formula_with_response;
+use foothold_report::plot::{
     common_y_range, group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay,
     MAX_OVERLAY_GROUPS,
 };
-use crate::symbolic::Model;
+use foothold::symbolic::Model;
 use std::io::Write;
 
 /// Most groups drawn as separate panels (failed groups first); the table shows them all.

@@ -9,12 +9,12 @@ use super::prepare::{
     bind_rows, model_for, read_input, run_fit as lm_fit, starting_values_searched,
 };
 use super::Outcome;
-use crate::error::Error;
-use crate::features::detect;
-use crate::report::assemble::{fit_sheet, survey_panels};
-use crate::report::fit_json::fit_json;
-use crate::report::fit_table::fit_table;
-use crate::report::formats::{fit_csv, fit_yaml};
+use foothold::error::Error;
+use foothold::features::detect;
+use foothold_report::assemble::{fit_sheet, survey_panels};
+use foothold_report::fit_json::fit_json;
+use foothold_report::fit_table::fit_table;
+use foothold_report::formats::{fit_csv, fit_yaml};
 use std::io::Write;
 use std::time::Instant;
 

@@ -4,12 +4,12 @@
 use super::args::{Format, InferArgs};
 use super::prepare::{bind_rows, model_for, read_input};
 use super::Outcome;
-use crate::error::Error;
-use crate::features::shape::Direction;
-use crate::features::{XAxis, YTransform};
-use crate::infer::{infer, InferOptions, Inference};
-use crate::report::fit_table::format_number;
-use crate::report::formats::csv_number;
+use foothold::error::Error;
+use foothold::features::shape::Direction;
+use foothold::features::{XAxis, YTransform};
+use foothold::infer::{infer, InferOptions, Inference};
+use foothold_report::fit_table::format_number;
+use foothold_report::formats::csv_number;
 use serde::Serialize;
 use std::io::Write;
 use std::time::Instant;
@@ -188,9 +188,9 @@ struct InferOut<'a> {
     data: &'a str,
     response: &'a str,
     parameters: Vec<ParamOut<'a>>,
-    features: &'a crate::features::DataFeatures,
-    candidates: &'a [crate::infer::Candidate],
-    scales: &'a [crate::infer::ScanRange],
+    features: &'a foothold::features::DataFeatures,
+    candidates: &'a [foothold::infer::Candidate],
+    scales: &'a [foothold::infer::ScanRange],
     notes: &'a [String],
 }
 

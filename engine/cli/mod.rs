@@ -14,7 +14,6 @@ pub mod output;
 pub mod prepare;
 pub mod rank_cmd;
 pub mod report_cmd;
-pub mod starts;
 
 use args::{Cli, Command};
 use clap::error::ErrorKind;

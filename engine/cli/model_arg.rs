@@ -2,12 +2,12 @@
 //! the variable `x` renamed to a data column through the parsed tree (never
 //! by editing the text), then bound to the data's columns.
 
-use crate::data::Dataset;
-use crate::error::Error;
-use crate::library::{self, LibraryModel, LIBRARY_X};
-use crate::symbolic::model::ModelError;
-use crate::symbolic::parse::{parse_formula, ParsedFormula};
-use crate::symbolic::Model;
+use foothold::data::Dataset;
+use foothold::error::Error;
+use foothold::library::{self, LibraryModel, LIBRARY_X};
+use foothold::symbolic::model::ModelError;
+use foothold::symbolic::parse::{parse_formula, ParsedFormula};
+use foothold::symbolic::Model;
 
 /// A resolved `--model`: the formula text to show, its parsed trees, and the
 /// library entry it came from, if any.

@@ -3,15 +3,15 @@
 
 use super::args::{Format, ModelsArgs};
 use super::Outcome;
-use crate::error::Error;
-use crate::library::library;
-use crate::report::formats::{aligned_table, csv_line, to_json, to_yaml, Align};
+use foothold::error::Error;
+use foothold::library::library;
+use foothold_report::formats::{aligned_table, csv_line, to_json, to_yaml, Align};
 use serde::Serialize;
 use std::io::Write;
 
 #[derive(Serialize)]
 struct ModelsDoc {
-    models: &'static [crate::library::LibraryModel],
+    models: &'static [foothold::library::LibraryModel],
 }
 
 /// Runs `models`, printing to `out`.

@@ -1,9 +1,9 @@
 //! Where results go: standard output or a file written atomically, and the
 //! plot files of `--plots DIR`.
 
-use crate::error::Error;
-use crate::report::atomic::{write_atomic, write_atomic_with};
-use crate::report::plot::{
+use foothold::error::Error;
+use foothold_report::atomic::{write_atomic, write_atomic_with};
+use foothold_report::plot::{
     fit_sheet_png, fit_sheet_svg, survey_sheet_png, survey_sheet_svg, FitSheet, Panel,
 };
 use std::io::Write;

@@ -5,11 +5,11 @@
 use super::args::{Format, RankArgs};
 use super::prepare::{bind_rows, model_for, read_input};
 use super::Outcome;
-use crate::auto_start::infer_and_search;
-use crate::error::Error;
-use crate::report::fit_table::format_number;
-use crate::report::formats::csv_number;
-use crate::search::{SearchOptions, SearchOutcome};
+use foothold::auto_start::infer_and_search;
+use foothold::error::Error;
+use foothold_report::fit_table::format_number;
+use foothold_report::formats::csv_number;
+use foothold::search::{SearchOptions, SearchOutcome};
 use serde::Serialize;
 use std::io::Write;
 
@@ -62,7 +62,7 @@ fn demotion_note(outcome: &SearchOutcome, k: usize) -> Option<String> {
         "ranked below rank {} despite a lower sum of squares: it runs to infinity, and a \
          proper minimum within {} % of its sum of squares ranks above it",
         list.join(", "),
-        crate::search::rank::COMPARABLE * 100.0
+        foothold::search::rank::COMPARABLE * 100.0
     ))
 }
 

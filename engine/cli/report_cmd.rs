@@ -8,14 +8,14 @@ use super::output::{emit, write_plots};
 use super::prepare::{bind_rows, model_for, read_input, run_fit, starting_values, starts_given};
 use super::rank_cmd::{ranked, search_options};
 use super::Outcome;
-use crate::auto_start::{best_start, infer_and_search};
-use crate::error::Error;
-use crate::features::detect;
-use crate::fit::problem::Problem;
-use crate::report::assemble::{fit_sheet, report_input, survey_panels, ReportParts};
-use crate::report::fit_table::{format_number, SIGNIFICANT};
-use crate::report::html::{render_report, MinimumRow, StartingValueRow};
-use crate::search::SearchOptions;
+use foothold::auto_start::{best_start, infer_and_search};
+use foothold::error::Error;
+use foothold::features::detect;
+use foothold::fit::problem::Problem;
+use foothold_report::assemble::{fit_sheet, report_input, survey_panels, ReportParts};
+use foothold_report::fit_table::{format_number, SIGNIFICANT};
+use foothold_report::html::{render_report, MinimumRow, StartingValueRow};
+use foothold::search::SearchOptions;
 use std::io::Write;
 
 /// Today's date (UTC) as YYYY-MM-DD, or the date of `SOURCE_DATE_EPOCH` when

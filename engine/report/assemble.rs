@@ -7,9 +7,9 @@ use super::html::{
     formula_with_response, EstimateRow, MinimumRow, ReportInput, StartingValueRow, Table,
 };
 use super::plot::{format_num, FitSheet, Panel};
-use crate::features::{DataFeatures, Direction, Segment, ViewReport, XAxis, YTransform};
-use crate::fit::problem::Problem;
-use crate::fit::stats::FitSummary;
+use foothold::features::{DataFeatures, Direction, Segment, ViewReport, XAxis, YTransform};
+use foothold::fit::problem::Problem;
+use foothold::fit::stats::FitSummary;
 
 /// Points on the dense grid of fitted and starting curves.
 pub const CURVE_POINTS: usize = 400;
@@ -447,7 +447,7 @@ pub fn estimate_rows(summary: &FitSummary) -> Vec<EstimateRow> {
             note: p
                 .unidentified_reason
                 .filter(|_| p.identifiable == Some(false))
-                .map(|c| crate::fit::stats::unidentified_text(c).to_string()),
+                .map(|c| foothold::fit::stats::unidentified_text(c).to_string()),
         })
         .collect()
 }
@@ -469,7 +469,7 @@ pub fn fit_facts(summary: &FitSummary) -> Vec<(String, String)> {
         ),
         (
             "Stop reason".into(),
-            crate::report::fit_table::stop_text(summary),
+            crate::fit_table::stop_text(summary),
         ),
         (
             "Condition number".into(),
@@ -569,8 +569,8 @@ pub fn report_input(parts: &ReportParts) -> ReportInput {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::features::detect;
-    use crate::symbolic::Model;
+    use foothold::features::detect;
+    use foothold::symbolic::Model;
 
     fn saturation() -> (Vec<f64>, Vec<f64>) {
         // Invented: y = 5x/(2 + x) on x = 0.25 .. 12, no noise.

@@ -170,8 +170,8 @@ fn group_table(h: &mut String, input: &BatchReportInput) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::html::CAUTION;
-    use crate::report::plot::{group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay};
+    use crate::html::CAUTION;
+    use crate::plot::{group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay};
 
     fn demo() -> BatchReportInput {
         // Invented: two exponential decays and one failed group.

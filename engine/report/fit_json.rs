@@ -2,7 +2,7 @@
 //! so that the output is always valid JSON and the same for the same fit.
 
 use super::fit_table::FitContext;
-use crate::fit::stats::FitSummary;
+use foothold::fit::stats::FitSummary;
 use serde::Serialize;
 
 /// One parameter in the JSON (and YAML) output; `None` is a non-finite number.
@@ -106,7 +106,7 @@ pub fn fit_document<'a>(summary: &'a FitSummary, ctx: &'a FitContext) -> FitJson
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::fit_table::tests::sample_summary;
+    use crate::fit_table::tests::sample_summary;
 
     #[test]
     fn non_finite_numbers_are_null_and_json_is_valid() {

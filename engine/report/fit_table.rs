@@ -1,24 +1,9 @@
 //! The fit as an aligned plain-text table: one row per parameter (estimate,
 //! standard error, t value, 95% interval), then the fit's overall figures and warnings.
 
-use crate::fit::stats::{unidentified_text, FitSummary};
+use foothold::fit::stats::{unidentified_text, FitSummary};
 
-/// What the fit was of, for the heading of a report.
-#[derive(Debug, Clone, Default)]
-pub struct FitContext {
-    /// The model formula as given.
-    pub model: String,
-    /// Where the data came from.
-    pub data: String,
-    /// The response column.
-    pub response: String,
-    /// Rows dropped because a needed cell was empty.
-    pub skipped_rows: usize,
-    /// Warnings from reading the data (fit warnings live in the summary).
-    pub warnings: Vec<String>,
-    /// When the starts were found by the multistart search: (local fits tried, distinct minima).
-    pub search: Option<(usize, usize)>,
-}
+pub use foothold::pipeline::FitContext;
 
 /// The stop reason with whether it counts as converged, as tables print it.
 pub fn stop_text(summary: &FitSummary) -> String {
@@ -35,34 +20,7 @@ pub const SIGNIFICANT: usize = 7;
 /// Significant digits for t values.
 pub const T_SIGNIFICANT: usize = 4;
 
-/// Formats a number to `sig` significant digits: fixed notation for
-/// magnitudes in [1e-4, 1e7), scientific outside; `n/a` for NaN.
-pub fn format_number(v: f64, sig: usize) -> String {
-    let sig = sig.max(1);
-    if v.is_nan() {
-        return "n/a".into();
-    }
-    if v.is_infinite() {
-        return if v > 0.0 { "inf" } else { "-inf" }.into();
-    }
-    if v == 0.0 {
-        return "0".into();
-    }
-    let a = v.abs();
-    if !(1e-4..1e7).contains(&a) {
-        return format!("{:.*e}", sig - 1, v);
-    }
-    let mag = a.log10().floor() as i32;
-    let mut dec = (sig as i32 - 1 - mag).max(0) as usize;
-    let s = format!("{:.*}", dec, v);
-    // Rounding may carry into a new leading digit (9.9999996 -> 10.000000).
-    let rounded: f64 = s.parse().unwrap_or(v);
-    if rounded.abs() >= 10f64.powi(mag + 1) && dec > 0 {
-        dec -= 1;
-        return format!("{:.*}", dec, v);
-    }
-    s
-}
+pub use foothold::number_text::format_number;
 
 /// Renders the whole fit as text, ending with a newline.
 pub fn fit_table(summary: &FitSummary, ctx: &FitContext) -> String {
@@ -182,7 +140,7 @@ pub fn fit_table(summary: &FitSummary, ctx: &FitContext) -> String {
 #[cfg(test)]
 pub(crate) mod tests {
     use super::*;
-    use crate::fit::stats::ParamEstimate;
+    use foothold::fit::stats::ParamEstimate;
 
     /// A hand-made summary for the formatting tests.
     pub(crate) fn sample_summary() -> FitSummary {

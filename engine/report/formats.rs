@@ -4,7 +4,7 @@
 
 use super::fit_json::fit_document;
 use super::fit_table::FitContext;
-use crate::fit::stats::FitSummary;
+use foothold::fit::stats::FitSummary;
 use serde::Serialize;
 
 /// Serialises any document as YAML (field order as declared), ending with a newline.
@@ -145,7 +145,7 @@ pub fn aligned_table<S: AsRef<str>>(headers: &[&str], align: &[Align], rows: &[V
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::fit_table::tests::sample_summary;
+    use crate::fit_table::tests::sample_summary;
 
     #[test]
     fn csv_has_one_row_per_parameter_and_empty_non_finite_cells() {

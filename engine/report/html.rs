@@ -539,7 +539,7 @@ pub(crate) fn figure(h: &mut String, svg: &str, caption: &str) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::report::plot::{demo, fit_sheet_svg, survey_sheet_svg};
+    use crate::plot::{demo, fit_sheet_svg, survey_sheet_svg};
 
     fn demo_input() -> ReportInput {
         ReportInput {
@@ -664,7 +664,7 @@ mod tests {
         assert!(!html.contains("<link") && !html.contains("@import") && !html.contains("url("));
         // Deterministic: equal input, equal page.
         assert_eq!(html, render_report(&demo_input()));
-        let dir = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/plots-check");
+        let dir = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../target/plots-check");
         std::fs::create_dir_all(&dir).expect("create target/plots-check");
         std::fs::write(dir.join("report.html"), &html).expect("write report.html");
     }

@@ -203,7 +203,7 @@ fn failure_svg(size: (u32, u32), e: &PlotError) -> String {
 }
 
 /// Escapes text for XML character data and attribute values (same rules as HTML).
-pub(crate) use crate::report::html::escape_html as escape_xml;
+pub(crate) use crate::html::escape_html as escape_xml;
 
 /// Survey sheet as SVG: the panels (usually the six views y, 1/y, log y
 /// against x and against log x) three to a row, features drawn on each.

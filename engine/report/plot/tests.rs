@@ -9,7 +9,7 @@ fn count(hay: &str, needle: &str) -> usize {
 }
 
 fn check_dir() -> PathBuf {
-    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/plots-check");
+    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../target/plots-check");
     std::fs::create_dir_all(&dir).expect("create target/plots-check");
     dir
 }

@@ -2,7 +2,7 @@
 //! squares on the original problem, the strategy that produced it and one
 //! derivation sentence per parameter; ranking keeps the distinct best ones.
 
-use crate::report::fit_table::format_number;
+use crate::number_text::format_number;
 
 /// A candidate start with how each value was obtained.
 #[derive(Debug, Clone)]

@@ -11,6 +11,8 @@ pub enum Error {
     Data(#[from] crate::data::DataError),
     #[error(transparent)]
     Problem(#[from] crate::fit::problem::ProblemError),
+    #[error(transparent)]
+    Start(#[from] crate::starts::StartError),
     #[error("{0}")]
     Usage(String),
 }

@@ -1,5 +1,8 @@
-//! Reading `--start NAME=VALUE,...`: every parameter must get exactly one
-//! finite value; mistakes are reported with the model's parameter list.
+//! Checking given starting values, once for every edge: every parameter must
+//! get exactly one finite value; mistakes are reported with the model's
+//! parameter list. [`order_starts`] takes (name, value) pairs (the library and
+//! the bindings); [`parse_starts`] reads the command line's `NAME=VALUE` text
+//! into pairs and then checks them the same way.
 
 use thiserror::Error;
 
@@ -14,14 +17,14 @@ pub enum StartError {
     Malformed { item: String, params: String },
     /// A name that is not a parameter.
     #[error(
-        "--start names '{name}', which is not a parameter of the model (parameters: {params})"
+        "a starting value names '{name}', which is not a parameter of the model (parameters: {params})"
     )]
     Unknown { name: String, params: String },
     /// The same parameter twice.
-    #[error("--start gives '{name}' more than once (parameters: {params})")]
+    #[error("a starting value for '{name}' is given more than once (parameters: {params})")]
     Duplicate { name: String, params: String },
     /// A value that is not a finite number.
-    #[error("--start {name}={text}: '{text}' is not a finite number (parameters: {params})")]
+    #[error("starting value {name}={text}: '{text}' is not a finite number (parameters: {params})")]
     NotANumber {
         name: String,
         text: String,
@@ -29,7 +32,7 @@ pub enum StartError {
     },
     /// Parameters left without a value.
     #[error(
-        "--start gives no value for {missing}; every parameter needs one (parameters: {params})"
+        "no starting value for {missing}; every parameter needs one (parameters: {params})"
     )]
     Missing { missing: String, params: String },
 }
@@ -52,20 +55,19 @@ pub fn parse_starts(items: &[String], params: &[String]) -> Result<Vec<f64>, Sta
                 .join(","),
         });
     }
-    let mut values: Vec<Option<f64>> = vec![None; params.len()];
+    let mut pairs: Vec<(&str, f64)> = Vec::with_capacity(items.len());
     for item in items {
         let (name, text) = item.split_once('=').ok_or_else(|| StartError::Malformed {
             item: item.to_string(),
             params: list.clone(),
         })?;
         let (name, text) = (name.trim(), text.trim());
-        let k = params
-            .iter()
-            .position(|p| p == name)
-            .ok_or_else(|| StartError::Unknown {
+        if !params.iter().any(|p| p == name) {
+            return Err(StartError::Unknown {
                 name: name.to_string(),
-                params: list.clone(),
-            })?;
+                params: list,
+            });
+        }
         let v = text
             .parse::<f64>()
             .ok()
@@ -75,12 +77,37 @@ pub fn parse_starts(items: &[String], params: &[String]) -> Result<Vec<f64>, Sta
                 text: text.to_string(),
                 params: list.clone(),
             })?;
+        pairs.push((name, v));
+    }
+    order_starts(&pairs, params)
+}
+
+/// Starting values in the order of `params` from (name, value) pairs: each
+/// parameter exactly once, every value finite.
+pub fn order_starts(pairs: &[(&str, f64)], params: &[String]) -> Result<Vec<f64>, StartError> {
+    let list = || params.join(", ");
+    let mut values: Vec<Option<f64>> = vec![None; params.len()];
+    for &(name, v) in pairs {
+        let k = params
+            .iter()
+            .position(|p| p == name)
+            .ok_or_else(|| StartError::Unknown {
+                name: name.to_string(),
+                params: list(),
+            })?;
+        if !v.is_finite() {
+            return Err(StartError::NotANumber {
+                name: name.to_string(),
+                text: v.to_string(),
+                params: list(),
+            });
+        }
         match values.get_mut(k) {
             Some(slot @ None) => *slot = Some(v),
             _ => {
                 return Err(StartError::Duplicate {
                     name: name.to_string(),
-                    params: list,
+                    params: list(),
                 })
             }
         }
@@ -94,7 +121,7 @@ pub fn parse_starts(items: &[String], params: &[String]) -> Result<Vec<f64>, Sta
     if !missing.is_empty() {
         return Err(StartError::Missing {
             missing: missing.join(", "),
-            params: list,
+            params: list(),
         });
     }
     Ok(values.into_iter().flatten().collect())
@@ -122,10 +149,10 @@ mod tests {
             (vec![], "no starting values given"),
             (vec!["a"], "'a' is not NAME=VALUE"),
             (vec!["a=1", "q=2"], "names 'q', which is not a parameter"),
-            (vec!["a=1", "a=2", "k=1"], "gives 'a' more than once"),
+            (vec!["a=1", "a=2", "k=1"], "'a' is given more than once"),
             (vec!["a=one", "k=1"], "a=one: 'one' is not a finite number"),
             (vec!["a=nan", "k=1"], "'nan' is not a finite number"),
-            (vec!["a=1"], "gives no value for k; every parameter"),
+            (vec!["a=1"], "no starting value for k; every parameter"),
         ];
         for (items, want) in cases {
             let e = parse_starts(&s(&items), &p).unwrap_err().to_string();
@@ -134,5 +161,8 @@ mod tests {
         }
         let e = parse_starts(&[], &p).unwrap_err().to_string();
         assert!(e.contains("--start a=1,k=1"), "{e}");
+        let e = order_starts(&[("a", 1.0), ("k", f64::NAN)], &p).unwrap_err();
+        assert!(e.to_string().contains("'NaN' is not a finite number"), "{e}");
+        assert_eq!(order_starts(&[("k", 2.0), ("a", 1.0)], &p), Ok(vec![1.0, 2.0]));
     }
 }

@@ -14,11 +14,11 @@ use std::sync::OnceLock;
 use thiserror::Error;
 
 /// The embedded `rules/limits.yaml`.
-pub const LIMITS_YAML: &str = include_str!("../rules/limits.yaml");
+pub const LIMITS_YAML: &str = include_str!("../../rules/limits.yaml");
 /// The embedded `rules/transforms.yaml`.
-pub const TRANSFORMS_YAML: &str = include_str!("../rules/transforms.yaml");
+pub const TRANSFORMS_YAML: &str = include_str!("../../rules/transforms.yaml");
 /// The embedded `rules/neutral.yaml`.
-pub const NEUTRAL_YAML: &str = include_str!("../rules/neutral.yaml");
+pub const NEUTRAL_YAML: &str = include_str!("../../rules/neutral.yaml");
 
 /// Why a rule file cannot be used.
 #[derive(Debug, Error)]

@@ -8,7 +8,7 @@ use std::sync::OnceLock;
 use thiserror::Error;
 
 /// The embedded `rules/models.yaml`.
-pub const MODELS_YAML: &str = include_str!("../rules/models.yaml");
+pub const MODELS_YAML: &str = include_str!("../../rules/models.yaml");
 
 /// The name of the independent variable in every library formula.
 pub const LIBRARY_X: &str = "x";

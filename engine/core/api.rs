@@ -14,7 +14,8 @@
 //! ```
 
 use crate::auto_start::{infer_and_search, starts_for};
-use crate::cli::prepare::{bind_rows, run_fit};
+use crate::pipeline::{bind_rows, run_fit};
+use crate::starts::order_starts;
 use crate::data::Dataset;
 use crate::error::Error;
 use crate::fit::problem::Problem;
@@ -74,7 +75,7 @@ pub fn fit(
     let problem = &problem(columns, formula)?;
     let start = match starts {
         None => starts_for(problem)?,
-        Some(given) => ordered_starts(given, &problem.model.params)?,
+        Some(given) => order_starts(given, &problem.model.params)?,
     };
     Ok(run_fit(problem, &start).1)
 }
@@ -112,38 +113,6 @@ pub fn rank(
 ) -> Result<SearchOutcome, Error> {
     let problem = problem(columns, formula)?;
     Ok(infer_and_search(&problem, options)?.1)
-}
-
-/// Starting values in parameter order from (name, value) pairs.
-fn ordered_starts(given: &[(&str, f64)], params: &[String]) -> Result<Vec<f64>, Error> {
-    let list = params.join(", ");
-    for (name, v) in given {
-        if !params.iter().any(|p| p == name) {
-            return Err(Error::Usage(format!(
-                "starting value for '{name}', which is not a parameter (parameters: {list})"
-            )));
-        }
-        if !v.is_finite() {
-            return Err(Error::Usage(format!(
-                "starting value {name} = {v} is not finite"
-            )));
-        }
-    }
-    params
-        .iter()
-        .map(|p| {
-            let mut found = given.iter().filter(|(n, _)| n == p);
-            match (found.next(), found.next()) {
-                (Some((_, v)), None) => Ok(*v),
-                (Some(_), Some(_)) => Err(Error::Usage(format!(
-                    "more than one starting value for '{p}'"
-                ))),
-                (None, _) => Err(Error::Usage(format!(
-                    "no starting value for '{p}' (parameters: {list})"
-                ))),
-            }
-        })
-        .collect()
 }
 
 #[cfg(test)]
