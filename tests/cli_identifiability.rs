@@ -60,7 +60,10 @@ fn noise_fit_flags_the_rate_in_json_and_csv() {
     assert_eq!(r["identifiable"], false, "{r}");
     assert_eq!(r["unidentified_reason"], "relative_se", "{r}");
     // The rate's standard error is more than 1000 times its estimate.
-    let (est, se) = (r["estimate"].as_f64().unwrap(), r["std_error"].as_f64().unwrap());
+    let (est, se) = (
+        r["estimate"].as_f64().unwrap(),
+        r["std_error"].as_f64().unwrap(),
+    );
     assert!(se > 1e3 * est.abs(), "{r}");
     for n in ["a", "c"] {
         let p = get(n);
@@ -88,7 +91,11 @@ fn determined_fit_has_no_flag() {
     ]);
     assert_eq!(code, 0, "{err}");
     assert!(!out.contains("not identifiable"), "{out}");
-    assert!(!out.lines().any(|l| l.starts_with("parameter") && l.ends_with("note")), "{out}");
+    assert!(
+        !out.lines()
+            .any(|l| l.starts_with("parameter") && l.ends_with("note")),
+        "{out}"
+    );
 }
 
 /// Batch output marks the rate of every group fitted to the noise.
@@ -129,12 +136,21 @@ fn batch_marks_unidentified_parameters() {
     let a = args("table");
     let (code, table, err) = run(&a.iter().map(String::as_str).collect::<Vec<_>>());
     assert_eq!(code, 0, "{err}");
-    assert_eq!(table.matches("(n.i.)").count(), 3, "two marks and the legend: {table}");
+    assert_eq!(
+        table.matches("(n.i.)").count(),
+        3,
+        "two marks and the legend: {table}"
+    );
     let a = args("json");
     let (_, json, _) = run(&a.iter().map(String::as_str).collect::<Vec<_>>());
     let v: serde_json::Value = serde_json::from_str(&json).expect("json");
     let g = &v["groups"][0]["parameters"];
-    let r = g.as_array().unwrap().iter().find(|p| p["name"] == "r").unwrap();
+    let r = g
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["name"] == "r")
+        .unwrap();
     assert_eq!(r["identifiable"], false, "{r}");
 }
 
@@ -161,7 +177,9 @@ fn report_marks_the_rate_beside_its_estimate() {
         .find(|l| l.starts_with("<tr><td><code>r</code>") && l.contains("class=\"num\">7"))
         .unwrap_or_else(|| panic!("no estimate row for r"));
     assert!(
-        row.contains("<em class=\"unidentified\">(not identifiable: std. error &gt; 1000 x |estimate|)</em>"),
+        row.contains(
+            "<em class=\"unidentified\">(not identifiable: std. error &gt; 1000 x |estimate|)</em>"
+        ),
         "{row}"
     );
     let a_row = html

@@ -38,13 +38,22 @@ fn rank_table_prints_percentages_and_whole_iterations() {
     let heads: Vec<&str> = out.lines().filter(|l| l.starts_with("rank ")).collect();
     assert!(!heads.is_empty(), "{out}");
     for h in heads {
-        let share = h.split("share ").nth(1).unwrap().split("  ").next().unwrap();
+        let share = h
+            .split("share ")
+            .nth(1)
+            .unwrap()
+            .split("  ")
+            .next()
+            .unwrap();
         assert!(share.ends_with(" %"), "{h}");
         let pct: f64 = share.trim_end_matches(" %").parse().unwrap();
         assert!((0.0..=100.0).contains(&pct), "{h}");
         let it = h.split("median iterations ").nth(1).unwrap();
         let it = it.split_whitespace().next().unwrap();
-        assert!(it.parse::<u64>().is_ok(), "iterations {it:?} not whole: {h}");
+        assert!(
+            it.parse::<u64>().is_ok(),
+            "iterations {it:?} not whole: {h}"
+        );
     }
 }
 
@@ -55,7 +64,10 @@ fn rank_is_monotone_in_ssr_or_says_why() {
     let c = v["candidates"].as_array().unwrap();
     let mut demotions = 0;
     for k in 1..c.len() {
-        let (a, b) = (c[k - 1]["ssr"].as_f64().unwrap(), c[k]["ssr"].as_f64().unwrap());
+        let (a, b) = (
+            c[k - 1]["ssr"].as_f64().unwrap(),
+            c[k]["ssr"].as_f64().unwrap(),
+        );
         if b < a {
             // A lower sum of squares below a higher one: the demotion must be explained.
             let note = c[k]["demoted"].as_str().unwrap_or_else(|| {
@@ -112,7 +124,10 @@ fn rank_and_infer_csv_use_the_fit_number_style() {
         "csv",
     ]);
     assert_eq!(code, 0, "{err}");
-    let vmax = csv.lines().find(|l| l.starts_with("vmax,")).expect("vmax row");
+    let vmax = csv
+        .lines()
+        .find(|l| l.starts_with("vmax,"))
+        .expect("vmax row");
     let cell = vmax.split(',').nth(1).unwrap();
     assert!(plain(cell) && !cell.contains('e'), "{vmax}");
     let v: f64 = cell.parse().unwrap();
@@ -183,7 +198,10 @@ fn flat_valley_is_reported_once() {
         let fv = &x["flat_valley"];
         assert!(fv["minima"].as_u64().unwrap() >= 2, "{fv}");
         assert!(!fv["direction"].as_array().unwrap().is_empty(), "{fv}");
-        let (lo, hi) = (fv["ssr_low"].as_f64().unwrap(), fv["ssr_high"].as_f64().unwrap());
+        let (lo, hi) = (
+            fv["ssr_low"].as_f64().unwrap(),
+            fv["ssr_high"].as_f64().unwrap(),
+        );
         assert!(lo <= hi && hi - lo <= 1e-5 * hi, "{fv}");
         assert_eq!(x["ssr"].as_f64().unwrap(), lo, "shown at its lowest point");
     }
