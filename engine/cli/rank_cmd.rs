@@ -35,6 +35,36 @@ pub struct RankedCandidate {
     /// minimum running to infinity ranks below proper minima within 1 % of
     /// its sum of squares, `search::rank`); `null` when it is not demoted.
     pub demoted: Option<String>,
+    /// Set when several minima of equal cost on one flat valley are reported
+    /// as this one entry.
+    pub flat_valley: Option<FlatValley>,
+}
+
+/// A flat valley in the ranked list: how many minima lie on it and which
+/// parameters change along it.
+#[derive(Debug, Serialize)]
+pub struct FlatValley {
+    pub minima: usize,
+    pub direction: Vec<String>,
+    pub ssr_low: Option<f64>,
+    pub ssr_high: Option<f64>,
+}
+
+/// The flat-valley note as tables print it.
+pub fn valley_note(v: &FlatValley) -> String {
+    let g = |x: Option<f64>| x.map(|x| format_number(x, 7)).unwrap_or_else(|| "n/a".into());
+    format!(
+        "flat valley: {} minima of equal cost (ssr {} to {}) along a direction moving {}; \
+         reported once, at its lowest point",
+        v.minima,
+        g(v.ssr_low),
+        g(v.ssr_high),
+        if v.direction.is_empty() {
+            "no parameter measurably".to_string()
+        } else {
+            v.direction.join(", ")
+        }
+    )
 }
 
 /// Ranks of the proper minima placed above minimum `k` although their sums of
@@ -112,6 +142,16 @@ pub fn ranked(names: &[String], outcome: &SearchOutcome, top: usize) -> Vec<Rank
                 .filter_map(|&i| names.get(i).cloned())
                 .collect(),
             demoted: demotion_note(outcome, k),
+            flat_valley: m.valley.as_ref().map(|v| FlatValley {
+                minima: v.minima,
+                direction: v
+                    .direction
+                    .iter()
+                    .filter_map(|&i| names.get(i).cloned())
+                    .collect(),
+                ssr_low: finite(v.ssr_low),
+                ssr_high: finite(v.ssr_high),
+            }),
         })
         .collect()
 }
@@ -227,6 +267,9 @@ pub fn run_rank(
                 ));
                 if let Some(d) = &c.demoted {
                     s.push_str(&format!("  note: {d}\n"));
+                }
+                if let Some(v) = &c.flat_valley {
+                    s.push_str(&format!("  note: {}\n", valley_note(v)));
                 }
                 let w = c
                     .parameters

@@ -24,7 +24,7 @@ pub mod symmetry;
 mod tests;
 
 pub use candidates::{find_symmetries, Candidate, Origin};
-pub use outcome::{Minimum, Run, SearchOutcome};
+pub use outcome::{Minimum, Run, SearchOutcome, Valley};
 pub use scale::{ParamScale, SignFreedom};
 pub use symmetry::{find_sign_flips, find_signed_swaps};
 
@@ -229,26 +229,62 @@ pub fn search(
     }
 
     let total = done.len();
-    let minima: Vec<Minimum> = basins
+    // Minima of equal cost on one flat valley are reported once (issue 10):
+    // `valley_of[b]` is the valley (smallest basin index) of basin b.
+    let points: Vec<cluster::ValleyPoint> = basins
         .list
         .iter()
-        .map(|basin| {
+        .map(|b| cluster::ValleyPoint {
+            params: &b.params,
+            ssr: b.ssr,
+            divergent: &b.divergent,
+        })
+        .collect();
+    let valley_of = cluster::flat_valleys(&points, |p| refine::sum_of_squares(problem, p));
+    let heads: Vec<usize> = (0..basins.list.len())
+        .filter(|&b| valley_of[b] == b)
+        .collect();
+    let minima: Vec<Minimum> = heads
+        .iter()
+        .map(|&head| {
+            let group: Vec<&cluster::Basin> = basins
+                .list
+                .iter()
+                .enumerate()
+                .filter(|&(b, _)| valley_of[b] == head)
+                .map(|(_, basin)| basin)
+                .collect();
+            // The lowest member stands for the valley (the first on a tie).
+            let basin = group
+                .iter()
+                .copied()
+                .min_by(|a, b| a.ssr.total_cmp(&b.ssr))
+                .unwrap_or(&basins.list[head]);
+            let members: Vec<usize> = group.iter().flat_map(|b| b.members.clone()).collect();
+            let credited: usize = group.iter().map(|b| b.credited.len()).sum();
             let best = &done[basin.best_run].0;
-            let fastest = basin
-                .members
+            let fastest = members
                 .iter()
                 .min_by_key(|&&i| (done[i].0.iterations, i))
                 .copied()
                 .unwrap_or(basin.best_run);
-            let reached_by = basin.members.len() + basin.credited.len();
-            let m = Minimum {
+            let reached_by = members.len() + credited;
+            let valley = (group.len() > 1).then(|| {
+                let ends: Vec<&[f64]> = group.iter().map(|b| b.params.as_slice()).collect();
+                Valley {
+                    minima: group.len(),
+                    direction: cluster::valley_direction(&ends, &scales, tol.param_rtol),
+                    ssr_low: group.iter().map(|b| b.ssr).fold(f64::INFINITY, f64::min),
+                    ssr_high: group.iter().map(|b| b.ssr).fold(f64::NEG_INFINITY, f64::max),
+                }
+            });
+            Minimum {
                 rank: 0,
                 params: basin.params.clone(),
                 ssr: basin.ssr,
                 share: reached_by as f64 / total.max(1) as f64,
                 iterations_median: median(
-                    basin
-                        .members
+                    members
                         .iter()
                         .map(|&i| done[i].0.iterations as f64)
                         .collect(),
@@ -257,20 +293,27 @@ pub fn search(
                 divergent: best.divergent.clone(),
                 start: cands[fastest].point.clone(),
                 reached_by,
-                credited: basin.credited.len(),
-            };
-            m
+                credited,
+                valley,
+            }
         })
         .collect();
     let order = rank::ranking(&minima);
-    let mut rank_of = vec![0usize; minima.len()];
+    let mut rank_of_head = vec![0usize; minima.len()];
     for (k, &i) in order.iter().enumerate() {
-        rank_of[i] = k + 1;
+        rank_of_head[i] = k + 1;
     }
+    // Rank of each basin: that of its valley.
+    let rank_of: Vec<usize> = (0..basins.list.len())
+        .map(|b| {
+            let h = heads.iter().position(|&x| x == valley_of[b]).unwrap_or(0);
+            rank_of_head[h]
+        })
+        .collect();
     let mut ranked: Vec<Minimum> = order
         .iter()
         .map(|&i| Minimum {
-            rank: rank_of[i],
+            rank: rank_of_head[i],
             ..minima[i].clone()
         })
         .collect();
