@@ -59,7 +59,7 @@ pub fn model_for(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Model)
     if let Some(x) = &input.x {
         check_column(data, "--x", x)?;
     }
-    let spec = resolve_model(&input.model, input.x.as_deref())?;
+    let spec = resolve_model(&input.model, input.x.as_deref(), &data.columns)?;
     let model = bind_model(&spec, data, input.y.as_deref())?;
     if let Some(y) = &input.y {
         if model.lhs.is_some() && model.response != *y {
@@ -70,6 +70,16 @@ pub fn model_for(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Model)
         }
     }
     Ok((spec, model))
+}
+
+/// Resolves the model of the input arguments and binds it to the rows it can
+/// use ([`model_for`], then [`bind_rows`]); the model's notes (a column that
+/// hides a constant) join the data's warnings.
+pub fn bind_input(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Bound), Error> {
+    let (spec, model) = model_for(input, data)?;
+    let mut bound = bind_rows(model, data)?;
+    bound.context.warnings.extend(spec.notes.iter().cloned());
+    Ok((spec, bound))
 }
 
 /// A model bound to the rows it can use, with the report's context.

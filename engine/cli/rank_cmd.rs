@@ -3,7 +3,8 @@
 //! chosen start can be plugged into any other fitter.
 
 use super::args::{Format, RankArgs};
-use super::prepare::{bind_rows, model_for, read_input};
+use super::prepare::{bind_input, read_input};
+use super::provenance::Run;
 use super::Outcome;
 use crate::auto_start::infer_and_search;
 use crate::error::Error;
@@ -82,6 +83,7 @@ pub fn ranked(names: &[String], outcome: &SearchOutcome, top: usize) -> Vec<Rank
 /// Runs `rank`.
 pub fn run_rank(
     args: &RankArgs,
+    run: &Run,
     out: &mut dyn Write,
     err: &mut dyn Write,
 ) -> Result<Outcome, Error> {
@@ -92,15 +94,16 @@ pub fn run_rank(
     }
     let verbose = args.output.verbose;
     let data = read_input(&args.input, verbose, err)?;
-    let (_, model) = model_for(&args.input, &data)?;
-    let bound = bind_rows(model, &data)?;
+    let (_, bound) = bind_input(&args.input, &data)?;
     if !args.output.quiet {
         for w in &bound.context.warnings {
             let _ = writeln!(err, "foothold: warning: {w}");
         }
     }
     let search_clock = std::time::Instant::now();
-    let (_, outcome) = infer_and_search(&bound.problem, &search_options(&args.search.budget))?;
+    let options = search_options(&args.search.budget);
+    let (_, outcome) = infer_and_search(&bound.problem, &options)?;
+    let run = run.searched(&options);
     if verbose {
         let _ = writeln!(
             err,
@@ -126,6 +129,7 @@ pub fn run_rank(
             "candidates_tried": outcome.candidates_tried,
             "minima_found": outcome.minima.len(),
             "candidates": list,
+            "run": run,
         })
     };
     let text = match args.output.format {
@@ -202,7 +206,7 @@ pub fn run_rank(
             s
         }
     };
-    let _ = out.write_all(text.as_bytes());
+    super::output::emit(&text, None, out)?;
     Ok(if outcome.minima.iter().any(|m| m.divergent.is_empty()) {
         Outcome::Success
     } else {
