@@ -460,6 +460,21 @@ fn matrix() -> Vec<Case> {
                 "did you mean michaelis-menten?",
             ],
         ),
+        fit(
+            "library name written with '_'",
+            GOOD,
+            "michaelis_menten",
+            &[],
+            &[
+                "'michaelis_menten' is not a model",
+                "did you mean michaelis-menten?",
+            ],
+        ),
+        formula(
+            "'~' instead of '='",
+            "y ~ a*x",
+            &["unexpected character '~'", "write '='", "at character 3"],
+        ),
         // ---- starting values ----
         fit(
             "--start names no parameter",
@@ -601,6 +616,13 @@ fn matrix() -> Vec<Case> {
             &["report", "{file}", "--model", "a*x", "--out", "/dev/full"],
             Some(GOOD),
             &["cannot write /dev/full", "No space left on device"],
+        ),
+        fit(
+            "--by column named like a summary column",
+            b"status,x,y\nA,1,2\nA,2,4.1\nB,1,3\nB,2,5.9\n",
+            "a*x",
+            &["--by", "status"],
+            &["--by status", "already one of its own columns"],
         ),
         case(
             "rank --by",

@@ -399,13 +399,13 @@ fn rough_duration(secs: f64) -> String {
 pub fn progress_line(done: usize, total: usize, elapsed: Duration) -> String {
     let secs = elapsed.as_secs_f64();
     let rate = if secs > 0.0 { done as f64 / secs } else { 0.0 };
+    let remaining = total.saturating_sub(done) as f64 / rate;
     let left = if done == 0 || rate <= 0.0 {
         "time left unknown".to_string()
+    } else if remaining < 0.5 {
+        "less than a second left".to_string()
     } else {
-        format!(
-            "about {} left",
-            rough_duration(total.saturating_sub(done) as f64 / rate)
-        )
+        format!("about {} left", rough_duration(remaining))
     };
     format!("foothold: progress: {done}/{total} groups, {rate:.1} groups/s, {left}")
 }
@@ -715,6 +715,43 @@ mod tests {
         assert_eq!(g[0].1, vec![0, 2]);
         assert_eq!(g[1].1, vec![1, 5]);
         assert_eq!(format!("{}", 3.0_f64), "3");
+    }
+
+    #[test]
+    fn progress_lines_say_done_rate_and_time_left() {
+        let secs = Duration::from_secs;
+        assert_eq!(
+            progress_line(0, 480, secs(5)),
+            "foothold: progress: 0/480 groups, 0.0 groups/s, time left unknown"
+        );
+        assert_eq!(
+            progress_line(60, 480, secs(5)),
+            "foothold: progress: 60/480 groups, 12.0 groups/s, about 35 s left"
+        );
+        assert_eq!(
+            progress_line(10, 4810, secs(5)),
+            "foothold: progress: 10/4810 groups, 2.0 groups/s, about 40 min 00 s left"
+        );
+        assert_eq!(
+            progress_line(1, 10_001, secs(1)),
+            "foothold: progress: 1/10001 groups, 1.0 groups/s, about 2 h 46 min left"
+        );
+        assert!(progress_line(480, 480, secs(9)).ends_with("less than a second left"));
+    }
+
+    #[test]
+    fn unfinished_groups_are_told_apart() {
+        use GroupStatus::*;
+        let g = [("A", Failed), ("B", Converged), ("C", NotConverged), ("D", Failed)];
+        assert_eq!(
+            unfinished_summary(g, "well").unwrap(),
+            "2 of 4 groups failed (well = A, D) and 1 did not converge (well = C)"
+        );
+        assert_eq!(
+            unfinished_summary([("A", NotConverged), ("B", Converged)], "w").unwrap(),
+            "1 of 2 groups did not converge (w = A)"
+        );
+        assert_eq!(unfinished_summary([("A", Converged)], "w"), None);
     }
 
     #[test]
