@@ -27,15 +27,6 @@ use foothold::symbolic::Model;
 use rayon::prelude::*;
 use std::time::{Duration, Instant};
 
-/// The certified arctan model assumes a branch of arctan in (0, π): with the
-/// principal branch the same optimum has b1 smaller by exactly 1 (see
-/// tests/nist_given_starts.rs). Benchmarks may name reference problems; the engine may not.
-fn align_branch(name: &str, est: &mut [f64], cert: &[f64]) {
-    if name == "Roszman1" && (est[0] + 1.0 - cert[0]).abs() < (est[0] - cert[0]).abs() {
-        est[0] += 1.0;
-    }
-}
-
 /// Best LRE over the mirror images of `est` under the model's symmetries: the
 /// search reports minima in a canonical order of interchangeable terms and
 /// with canonical signs, which need not be the certified ones.
@@ -58,7 +49,7 @@ fn lre_of(
         }
         for g in images {
             let mut e = apply(g, &signed);
-            align_branch(name, &mut e, cert);
+            strd::align_branch(name, &mut e, cert);
             best = best.max(strd::min_lre(&e, cert));
         }
     }
@@ -106,8 +97,7 @@ fn main() {
         .skip(1)
         .find_map(|a| a.parse().ok())
         .unwrap_or(16);
-    if strd::strd_dir().is_none() {
-        strd::announce_missing();
+    if strd::require_dir().is_none() {
         return;
     }
     let lm = LmOptions::default();

@@ -1,10 +1,13 @@
-//! Declarative knowledge loaded from `rules/` (YAML): function limits and
-//! dominance order, response transforms with their rewrite rules, neutral values
+//! Declarative knowledge loaded from `rules/` (YAML): the dominance order of
+//! growth components, response transforms with their rewrite rules, neutral values
 //! and scan scales. The default files are embedded so the binary works from
 //! anywhere; they are parsed and checked once, on first use.
+//!
+//! This module is plain data: it depends on nothing else in the engine.
+//! Formulas in the files stay text here and are read into expressions by
+//! `symbolic::transform_rules`; how each built-in function behaves is a
+//! function fact (`symbolic::functions`), not a rule file.
 
-use crate::symbolic::expr::{Expr, Func};
-use crate::symbolic::parse::parse_formula;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::sync::OnceLock;
@@ -32,7 +35,7 @@ pub enum RulesError {
 /// All rules, parsed and checked.
 #[derive(Debug, Clone)]
 pub struct Rules {
-    /// Function limits and the dominance order.
+    /// The dominance order of growth components.
     pub limits: LimitRules,
     /// Response transforms and rewrite rules.
     pub transforms: TransformRules,
@@ -74,151 +77,33 @@ pub enum Component {
     Const,
 }
 
-/// How a function behaves as its argument tends somewhere.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Behaviour {
-    /// Tends to this constant.
-    Value(Expr),
-    /// `f(u) ~ k·u`.
-    LikeArg(f64),
-    /// `f(u) ~ scale·exp(sign·u)`.
-    ExpOfArg { scale: f64, sign: f64 },
-    /// `f(u) ~ k·log(u)`.
-    LogOfArg(f64),
-    /// `f(u) ~ u^q`.
-    Power(f64),
-    /// Bounded, no limit (oscillates).
-    Bounded,
-    /// No usable rule.
-    Unknown,
-}
-
-/// A function's limit rules and derivative.
-#[derive(Debug, Clone, PartialEq)]
-pub struct FunctionRule {
-    /// Argument → +∞.
-    pub pos_inf: Behaviour,
-    /// Argument → −∞.
-    pub neg_inf: Behaviour,
-    /// Argument → 0.
-    pub zero: Behaviour,
-    /// Argument merely bounded.
-    pub bounded_arg: Behaviour,
-    /// `f'(u)` with `u = Param(0)`.
-    pub derivative: Expr,
-}
-
-/// Rules of `limits.yaml`.
-#[derive(Debug, Clone)]
+/// Rules of `limits.yaml`: the order in which growth components dominate.
+/// (How each function behaves is a function fact: `symbolic::functions`.)
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
 pub struct LimitRules {
     /// Components in decreasing dominance.
     pub dominance: Vec<Component>,
-    functions: BTreeMap<Func, FunctionRule>,
-}
-
-impl LimitRules {
-    /// The rule for one function.
-    pub fn function(&self, f: Func) -> Option<&FunctionRule> {
-        self.functions.get(&f)
-    }
-}
-
-#[derive(Deserialize)]
-#[serde(rename_all = "snake_case", deny_unknown_fields)]
-enum RawBehaviour {
-    Value(String),
-    LikeArg { scale: f64 },
-    ExpOfArg { scale: f64, sign: f64 },
-    LogOfArg { scale: f64 },
-    Power(f64),
-    Bounded,
-    Unknown,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFunction {
-    pos_inf: RawBehaviour,
-    neg_inf: RawBehaviour,
-    zero: RawBehaviour,
-    bounded_arg: RawBehaviour,
-    derivative: String,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawLimits {
-    dominance: Vec<Component>,
-    functions: BTreeMap<String, RawFunction>,
-}
-
-/// Parses a formula whose names must come from `allowed`; `Param(i)` = `allowed[i]`.
-fn formula(text: &str, allowed: &[&str], file: &'static str) -> Result<Expr, RulesError> {
-    let bad = |message: String| RulesError::Invalid { file, message };
-    let parsed = parse_formula(text).map_err(|e| bad(e.to_string()))?;
-    if parsed.lhs.is_some() {
-        return Err(bad(format!("'{text}': no '=' expected")));
-    }
-    let mut map = Vec::new();
-    for n in &parsed.names {
-        match allowed.iter().position(|a| a == n) {
-            Some(i) => map.push(i),
-            None => return Err(bad(format!("'{text}': unexpected name '{n}'"))),
-        }
-    }
-    Ok(parsed.rhs.map(&|e| match e {
-        Expr::Param(i) => map.get(*i).map(|&j| Expr::Param(j)),
-        _ => None,
-    }))
 }
 
 fn parse_limits(text: &str) -> Result<LimitRules, RulesError> {
     const FILE: &str = "limits.yaml";
-    // behaviours are written as one-key maps ({value: "1"}), not YAML tags
-    let raw: RawLimits = serde_yaml_ng::with::singleton_map_recursive::deserialize(
-        serde_yaml_ng::Deserializer::from_str(text),
-    )
-    .map_err(|source| RulesError::Yaml { file: FILE, source })?;
-    let conv = |b: RawBehaviour| -> Result<Behaviour, RulesError> {
-        Ok(match b {
-            RawBehaviour::Value(s) => Behaviour::Value(formula(&s, &[], FILE)?),
-            RawBehaviour::LikeArg { scale } => Behaviour::LikeArg(scale),
-            RawBehaviour::ExpOfArg { scale, sign } => Behaviour::ExpOfArg { scale, sign },
-            RawBehaviour::LogOfArg { scale } => Behaviour::LogOfArg(scale),
-            RawBehaviour::Power(q) => Behaviour::Power(q),
-            RawBehaviour::Bounded => Behaviour::Bounded,
-            RawBehaviour::Unknown => Behaviour::Unknown,
-        })
-    };
-    let mut functions = BTreeMap::new();
-    for (name, r) in raw.functions {
-        let f = Func::from_name(&name).ok_or_else(|| RulesError::Invalid {
-            file: FILE,
-            message: format!("unknown function '{name}'"),
-        })?;
-        functions.insert(
-            f,
-            FunctionRule {
-                pos_inf: conv(r.pos_inf)?,
-                neg_inf: conv(r.neg_inf)?,
-                zero: conv(r.zero)?,
-                bounded_arg: conv(r.bounded_arg)?,
-                derivative: formula(&r.derivative, &["u"], FILE)?,
-            },
-        );
-    }
-    for f in Func::ALL {
-        if !functions.contains_key(&f) {
+    let raw: LimitRules =
+        serde_yaml_ng::from_str(text).map_err(|source| RulesError::Yaml { file: FILE, source })?;
+    for c in [
+        Component::Exp,
+        Component::Power,
+        Component::Log,
+        Component::Const,
+    ] {
+        if raw.dominance.iter().filter(|d| **d == c).count() != 1 {
             return Err(RulesError::Invalid {
                 file: FILE,
-                message: format!("no rule for function '{}'", f.name()),
+                message: format!("dominance must name {c:?} exactly once"),
             });
         }
     }
-    Ok(LimitRules {
-        dominance: raw.dominance,
-        functions,
-    })
+    Ok(raw)
 }
 
 // ---------------------------------------------------------------- transforms
@@ -234,146 +119,66 @@ pub enum Guard {
     FreeOfData,
 }
 
-/// One rewrite rule: `Param(i)` in `from`/`to` is pattern variable `vars[i]`.
-#[derive(Debug, Clone, PartialEq)]
-pub struct RewriteRule {
-    /// Pattern.
-    pub from: Expr,
-    /// Replacement.
-    pub to: Expr,
-    /// Pattern variable names.
-    pub vars: Vec<String>,
-    /// Restrictions by variable index.
-    pub when: Vec<(usize, Guard)>,
+/// One rewrite rule as written: a pattern and its replacement in the model
+/// language, with restrictions on the pattern variables.
+#[derive(Debug, Clone, PartialEq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RuleText {
+    /// Pattern; every name in it is a pattern variable.
+    pub from: String,
+    /// Replacement, in the pattern's names.
+    pub to: String,
+    /// Restrictions by variable name.
+    #[serde(default)]
+    pub when: BTreeMap<String, Guard>,
 }
 
-/// A response transform: `target` uses `Var(0)` = response, `apply` uses
-/// `Var(0)` = model (or model over plateau); `Param(0)` is the plateau `A`.
-#[derive(Debug, Clone, PartialEq)]
-pub struct TransformSpec {
+/// A response transform as written.
+#[derive(Debug, Clone, PartialEq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TransformText {
     /// Name, as reported.
     pub name: String,
-    /// True when the transform needs a plateau parameter.
+    /// True when the transform needs a plateau parameter `A`.
+    #[serde(default)]
     pub plateau: bool,
-    /// T(response).
-    pub target: Expr,
-    /// T(model).
-    pub apply: Expr,
-    /// Rule sets to rewrite with.
-    pub rule_sets: Vec<String>,
+    /// T(response), a formula in `y` (and `A`).
+    pub target: String,
+    /// T(model), a formula in `f` (or `h` = model over plateau, and `A`).
+    pub apply: String,
+    /// Rule sets to rewrite with, in order of preference.
+    pub rules: Vec<String>,
 }
 
-/// Rules of `transforms.yaml`.
-#[derive(Debug, Clone)]
+/// Rules of `transforms.yaml` as written. Their formulas are read into
+/// expressions on the symbolic side (`symbolic::transform_rules`), so that this
+/// module stays plain data and depends on nothing else in the engine.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
 pub struct TransformRules {
     /// Transforms, in order.
-    pub transforms: Vec<TransformSpec>,
-    /// Functions whose sum arguments are expanded before rewriting.
-    pub expand_arguments_of: Vec<Func>,
+    pub transforms: Vec<TransformText>,
+    /// Names of functions whose sum arguments are expanded before rewriting.
+    pub expand_arguments_of: Vec<String>,
     /// Rule sets by name.
-    pub rule_sets: BTreeMap<String, Vec<RewriteRule>>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawTransform {
-    name: String,
-    #[serde(default)]
-    plateau: bool,
-    target: String,
-    apply: String,
-    rules: Vec<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawRule {
-    from: String,
-    to: String,
-    #[serde(default)]
-    when: BTreeMap<String, Guard>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawTransforms {
-    transforms: Vec<RawTransform>,
-    expand_arguments_of: Vec<String>,
-    rule_sets: BTreeMap<String, Vec<RawRule>>,
+    pub rule_sets: BTreeMap<String, Vec<RuleText>>,
 }
 
 fn parse_transforms(text: &str) -> Result<TransformRules, RulesError> {
     const FILE: &str = "transforms.yaml";
-    let bad = |message: String| RulesError::Invalid {
-        file: FILE,
-        message,
-    };
-    let raw: RawTransforms =
+    let raw: TransformRules =
         serde_yaml_ng::from_str(text).map_err(|source| RulesError::Yaml { file: FILE, source })?;
-    let mut rule_sets = BTreeMap::new();
-    for (set, rules) in raw.rule_sets {
-        let mut out = Vec::new();
-        for r in rules {
-            let parsed = parse_formula(&r.from).map_err(|e| bad(e.to_string()))?;
-            let vars = parsed.names.clone();
-            let names: Vec<&str> = vars.iter().map(|s| s.as_str()).collect();
-            let to = formula(&r.to, &names, FILE)?;
-            let mut when = Vec::new();
-            for (v, g) in r.when {
-                let i = names
-                    .iter()
-                    .position(|n| *n == v)
-                    .ok_or_else(|| bad(format!("rule '{}': 'when' names unknown '{v}'", r.from)))?;
-                when.push((i, g));
-            }
-            out.push(RewriteRule {
-                from: parsed.rhs,
-                to,
-                vars,
-                when,
-            });
-        }
-        rule_sets.insert(set, out);
-    }
-    let mut transforms = Vec::new();
-    for t in raw.transforms {
+    for t in &raw.transforms {
         for s in &t.rules {
-            if !rule_sets.contains_key(s) {
-                return Err(bad(format!(
-                    "transform '{}' names unknown rule set '{s}'",
-                    t.name
-                )));
+            if !raw.rule_sets.contains_key(s) {
+                return Err(RulesError::Invalid {
+                    file: FILE,
+                    message: format!("transform '{}' names unknown rule set '{s}'", t.name),
+                });
             }
         }
-        // first name (y, f or h) becomes Var(0), the plateau A becomes Param(0)
-        let to_var = |e: Expr| -> Expr {
-            e.map(&|n| match n {
-                Expr::Param(0) => Some(Expr::Var(0)),
-                Expr::Param(1) => Some(Expr::Param(0)),
-                _ => None,
-            })
-        };
-        let input = if t.plateau { "h" } else { "f" };
-        let target = to_var(formula(&t.target, &["y", "A"], FILE)?);
-        let apply = to_var(formula(&t.apply, &[input, "A"], FILE)?);
-        transforms.push(TransformSpec {
-            name: t.name,
-            plateau: t.plateau,
-            target,
-            apply,
-            rule_sets: t.rules,
-        });
     }
-    let mut expand_arguments_of = Vec::new();
-    for n in raw.expand_arguments_of {
-        expand_arguments_of
-            .push(Func::from_name(&n).ok_or_else(|| bad(format!("unknown function '{n}'")))?);
-    }
-    Ok(TransformRules {
-        transforms,
-        expand_arguments_of,
-        rule_sets,
-    })
+    Ok(raw)
 }
 
 // ---------------------------------------------------------------- neutral values and scales
@@ -432,29 +237,23 @@ mod tests {
     fn every_rule_file_parses_and_is_complete() {
         let r = parse_rules(LIMITS_YAML, TRANSFORMS_YAML, NEUTRAL_YAML).unwrap();
         assert_eq!(r.limits.dominance.len(), 4);
-        for f in Func::ALL {
-            assert!(r.limits.function(f).is_some(), "{}", f.name());
-        }
         // every rule set is used by some transform
         for set in r.transforms.rule_sets.keys() {
             assert!(
                 r.transforms
                     .transforms
                     .iter()
-                    .any(|t| t.rule_sets.contains(set)),
+                    .any(|t| t.rules.contains(set)),
                 "rule set {set} unused"
             );
         }
         assert!(r.transforms.transforms.iter().any(|t| t.name == "log"));
         assert!(r.neutral.neutral.contains_key("bending_exponent"));
-        // derivative of atan at u = 1 is 1/2 (standard calculus)
-        let d = &r.limits.function(Func::Atan).unwrap().derivative;
-        assert_eq!(d.eval(&[1.0], &[]), 0.5);
     }
 
     #[test]
     fn bad_files_are_errors() {
-        let bad = LIMITS_YAML.replace("derivative: \"exp(u)\"", "derivative: \"exp(w)\"");
+        let bad = LIMITS_YAML.replace("[exp, power, log, const]", "[exp, power, log, log]");
         assert!(matches!(
             parse_rules(&bad, TRANSFORMS_YAML, NEUTRAL_YAML),
             Err(RulesError::Invalid { .. })

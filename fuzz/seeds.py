@@ -73,6 +73,14 @@ for i, (f, ys, st) in enumerate(fits):
 # Special cells: NaN, inf and zeros in the data (tag bytes below 16).
 write("fit_problem", "seed-special", b"\x00a*exp(-b*x)\n\x05" + bytes([0, 2, 16, 0, 1, 3, 16, 0, 2, 16, 0, 4, 4, 16, 0, 3, 1, 16, 0, 2, 6, 7]))
 
+# Regression (issue 10): a finite Jacobian near 1e225 (x^100 at x = 86) made
+# the SVD of the polishing step overflow to NaN and panic.
+write("fit_problem", "regress-huge-jacobian-svd", fit_seed(
+    "p1+p2+p3*x^p4+p5+p6",
+    [0.18359375, 10.3359375, 0, 10.3828125, 86.0390625, 86.3359375, 86.17578125, 43.4765625, 86.16796875],
+    [86.3359375, 0.16796875, 0, 0, 0, 43.19921875, 43.16796875, 43.16796875, 21.16796875],
+    [0, 0, 1, 100, 0, 0]))
+
 # read_table: the whole input is the file's bytes (delimited text, or a workbook).
 TABLES = [
     b"x,y\n1,2\n3,4.5\n", b"x\ty\n1\t2\n3\t4.5\n", b"x   y\n  1 2\n3\t 4.5  \n",

@@ -264,6 +264,85 @@ fn matrix() -> Vec<Case> {
             &["--start", "a=1"],
             &["line 1", "column 2 of the header has no name"],
         ),
+        // ---- layouts (issue 17) ----
+        fit(
+            "ambiguous decimal marks in a ;-separated file",
+            b"x;y\n1;2,5\n2;3.5\n3;4,5\n",
+            "a*x",
+            &[],
+            &[
+                "{file}",
+                "decimal marks are ambiguous",
+                "line 2, column 2 has a decimal comma",
+                "line 3, column 2 a decimal point",
+                "--decimal",
+            ],
+        ),
+        fit(
+            "decimal comma in a tab-separated file",
+            b"x\ty\n1\t2,5\n2\t3,5\n",
+            "a*x",
+            &[],
+            &["{file}", "line 2", "column 'y'", "'2,5' is not a number", "try --decimal ,"],
+        ),
+        fit(
+            "--decimal , with a comma delimiter",
+            GOOD,
+            "a*x",
+            &["--decimal", ","],
+            &["{file}", "the comma cannot be both the delimiter and the decimal mark"],
+        ),
+        fit(
+            "--y pattern matching no column",
+            b"dose,rep1,rep2\n1,2,3\n2,4,5\n",
+            "a*x",
+            &["--x", "dose", "--y", "S*"],
+            &["--y 'S*' matches no column of {file}", "columns: dose, rep1, rep2"],
+        ),
+        fit(
+            "--wide-groups range past the last column",
+            b"dose,S1,S2\n1,2,3\n2,4,5\n",
+            "a*x",
+            &["--x", "dose", "--wide-groups", "S1..S3"],
+            &["column 'S3' is not in {file}", "columns: dose, S1, S2"],
+        ),
+        fit(
+            "--header-row beyond the end",
+            GOOD,
+            "a*x",
+            &["--header-row", "9"],
+            &["{file}", "--header-row 9 is past the end of the table", "last row is 5"],
+        ),
+        fit(
+            "--header-row on a blank line",
+            b"Plate 3\n\nx,y\n1,2\n2,4\n",
+            "a*x",
+            &["--header-row", "2"],
+            &["{file}", "--header-row 2 is a blank or comment row"],
+        ),
+        with_shape(
+            fit(
+                "--delimiter of two characters",
+                GOOD,
+                "a*x",
+                &["--delimiter", ";;"],
+                &["';;' is not a delimiter"],
+            ),
+            Shape::Usage,
+        ),
+        fit(
+            "--wide-groups with --by",
+            b"dose,S1,S2,plate\n1,2,3,1\n2,4,5,1\n",
+            "a*x",
+            &["--x", "dose", "--wide-groups", "S*", "--by", "plate"],
+            &["--wide-groups makes the groups (one per column); drop --by"],
+        ),
+        case(
+            "--wide-groups with rank",
+            &["rank", "{file}", "--model", "a*x", "--wide-groups", "S*"],
+            Some(b"x,S1,S2\n1,2,3\n2,4,5\n"),
+            &["--wide-groups fits one curve per column; use it with fit or report"],
+        ),
         fit(
             "no complete row in the used columns",
             b"x,y,z\n1,2,\n2,3,\n3,4,\n",
@@ -1000,4 +1079,45 @@ fn every_bad_input_is_refused_clearly() {
         println!("FAILED {f}");
     }
     assert_eq!(m, n, "failures:\n{}", failures.join("\n"));
+}
+
+/// Data that are valid but drive the numerics to their limits: the binary may
+/// fit (exit 0) or refuse (exit 1, 2) but must never panic (101), and must say
+/// what went wrong. Issue 10: a finite Jacobian near 1e225 (x^100 at x = 86)
+/// made nalgebra's SVD overflow to NaN and panic ("Singular value was NaN").
+#[test]
+fn numerical_extremes_never_panic() {
+    let huge_jacobian = b"x,y\n0.18359375,86.3359375\n10.3359375,0.16796875\n0,0\n\
+10.3828125,0\n86.0390625,0\n86.3359375,43.19921875\n86.17578125,43.16796875\n\
+43.4765625,43.16796875\n86.16796875,21.16796875\n";
+    let c = fit(
+        "Jacobian near 1e225 (x^100)",
+        huge_jacobian,
+        "p1+p2+p3*x^p4+p5+p6",
+        &["--start", "p1=0,p2=0,p3=1,p4=100,p5=0,p6=0"],
+        &[],
+    );
+    let root = common::cli::scratch("matrix-numerics");
+    std::fs::create_dir_all(&root).unwrap();
+    let file = root.join("data.csv");
+    std::fs::write(&file, c.file.as_ref().unwrap()).unwrap();
+    let r = run_case(&c, &root, &file);
+    let _ = std::fs::remove_dir_all(&root);
+    assert!(!r.timed_out, "{}: killed by the watchdog", c.name);
+    assert!(
+        matches!(r.code, Some(0..=2)),
+        "{}: exit {:?}\n{}",
+        c.name,
+        r.code,
+        r.stderr
+    );
+    assert!(!r.stderr.contains("panicked"), "{}", r.stderr);
+    // The sum of squares overflows there: the fit must not claim a minimum.
+    assert!(r.stdout.contains("overflow"), "{}", r.stdout);
+    assert!(!r.stdout.contains("(converged)"), "{}", r.stdout);
+    assert!(
+        r.stderr.contains("foothold: warning:"),
+        "no warning: {}",
+        r.stderr
+    );
 }

@@ -54,7 +54,7 @@ fn creep_specimens_fit_one_curve_each() {
     let lines: Vec<&str> = csv.lines().collect();
     assert_eq!(
         lines[0],
-        "specimen,status,n_obs,iterations,ssr,a_estimate,a_std_error,e0_estimate,e0_std_error,m_estimate,m_std_error,message"
+        "specimen,status,n_obs,iterations,ssr,a_estimate,a_std_error,e0_estimate,e0_std_error,m_estimate,m_std_error,a_identifiable,e0_identifiable,m_identifiable,message"
     );
     assert_eq!(lines.len(), 4, "{csv}");
     let want = [("1", 0.110, 0.42), ("2", 0.125, 0.45), ("3", 0.098, 0.40)];

@@ -67,12 +67,16 @@ fn every_format_gives_the_same_estimates() {
     let (code, csv, _) = run(&fit_args(p, "csv"));
     assert_eq!(code, 0);
     let lines: Vec<&str> = csv.lines().collect();
-    assert_eq!(lines[0], "name,estimate,std_error,t_value,ci_low,ci_high");
+    assert_eq!(
+        lines[0],
+        "name,estimate,std_error,t_value,ci_low,ci_high,identifiable,unidentified_reason"
+    );
     assert_eq!(lines.len(), 5);
     for (line, (name, want)) in lines[1..].iter().zip(TRUE) {
         let c: Vec<&str> = line.split(',').collect();
-        assert_eq!(c.len(), 6);
+        assert_eq!(c.len(), 8);
         assert_eq!(c[0], name);
+        assert_eq!(c[6], "true", "{line}");
         let got: f64 = c[1].parse().unwrap();
         assert!((got - want).abs() < 1e-7, "{name}: {got}");
         assert_eq!(

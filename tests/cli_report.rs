@@ -120,6 +120,11 @@ fn batch_report_holds_the_table_the_overlay_and_the_caution() {
     );
     assert!(html.contains("<h2>Groups</h2>") && html.contains("<h2>All groups</h2>"));
     assert!(html.contains("safety-critical"), "caution present");
+    // The model box shows the full model with its response.
+    assert!(
+        html.contains("<code class=\"formula\">response = asym/(1 + exp(-r*(log_dose - xmid)))</code>"),
+        "model box with the response"
+    );
     // Every compound has a row and appears in the overlay's legend.
     for name in ["KX-101", "KX-102", "KX-117", "LT-4a", "LT-4b", "ref std"] {
         assert!(
@@ -232,6 +237,194 @@ fn report_without_starts_infers_them_and_a_bad_model_exits_two() {
         "c=1,a=1,k=1",
     ]);
     assert_eq!(code, 2, "{err}");
+}
+
+/// The part of `html` from heading `from` to heading `to`.
+fn between<'a>(html: &'a str, from: &str, to: &str) -> &'a str {
+    let a = html.find(&format!("<h2>{from}</h2>")).expect(from);
+    let b = html[a..].find(&format!("<h2>{to}</h2>")).expect(to);
+    &html[a..a + b]
+}
+
+#[test]
+fn log_x_views_are_left_out_when_x_has_negative_values() {
+    // log_dose runs from -3 to 2 (demo-data/README.md): its log would drop most points.
+    let (code, out, err) = run(&[
+        "report",
+        "demo-data/plate_dose_response.csv",
+        "--model",
+        "logistic-3",
+        "--x",
+        "log_dose",
+        "--y",
+        "response",
+        "--start",
+        "asym=90,xmid=-0.5,r=2",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let survey = between(&out, "Survey of the data", "Fit");
+    assert!(
+        survey.contains("<p class=\"note\">The views against log log_dose are left out: "),
+        "{survey:.600}"
+    );
+    assert!(survey.contains("values of log_dose are negative"), "{survey:.600}");
+    // Three views remain, none against log log_dose, in the plot or the table.
+    for t in ["response against log_dose", "1/response against log_dose", "ln response against log_dose"] {
+        assert!(survey.contains(&format!("\n{t}\n</text>")), "panel {t}");
+    }
+    assert_eq!(
+        out.matches("against log log_dose").count(),
+        1,
+        "only the note names the views against log log_dose; none is drawn or listed"
+    );
+    // With x ≥ 0 (the cooling demo has one x = 0) the six views stay.
+    let d = scratch("logx");
+    let html = std::fs::read_to_string(cooling_report(&d)).unwrap();
+    let survey = between(&html, "Survey of the data", "Fit");
+    assert!(!survey.contains("class=\"note\""), "no note: {survey:.400}");
+    assert!(survey.contains("\nln temp against log minutes\n</text>"));
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn features_not_used_for_the_starts_are_folded_away() {
+    let d = scratch("features");
+    let html = std::fs::read_to_string(cooling_report(&d)).unwrap();
+    let feats = between(&html, "Features found", "Starting values");
+    let fold = feats.find("<details").expect("a details element");
+    let (front, folded) = feats.split_at(fold);
+    // Starts given: the note says so; the shape of temp against minutes is up front.
+    assert!(front.contains("given on the command line, so none was read from a feature"), "{front}");
+    let up_front = front.matches("<tr><td>").count();
+    assert_eq!(up_front, 3, "direction, plateau and intercept: {front}");
+    assert!(front.contains("<td>temp against minutes</td><td>high-end plateau</td><td class=\"num\">24.3</td>"));
+    // Everything else is inside the details element, with a count in its summary.
+    let inside = folded.matches("<tr><td>").count();
+    let summary = format!("<summary>{inside} other features found in the views</summary>");
+    assert!(folded.contains(&summary), "{folded:.300}");
+    assert!(inside >= 15, "{inside} rows folded");
+    assert!(folded.contains("<td>1/temp against minutes</td><td>straight segment, slope</td>"));
+    assert!(folded.trim_end().ends_with("</details>"));
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn figures_fit_the_text_column() {
+    let (code, out, err) = run(&[
+        "report",
+        "demo-data/part_cooling.csv",
+        "--model",
+        "decay-to-floor",
+        "--x",
+        "minutes",
+        "--y",
+        "temp",
+        "--start",
+        "c=20,a=150,k=0.1",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("figure { margin: .5rem 0 1rem; max-width: 100%; }"));
+    assert!(out.contains("figure svg { display: block; width: 100%; max-width: 100%; height: auto;"));
+    assert!(!out.contains("100vw") && !out.contains("translateX"), "no figure wider than the column");
+    // The single page's model box names the response too.
+    assert!(out.contains("<code class=\"formula\">temp = c + a*exp(-k*minutes)</code>"));
+}
+
+/// A batch of `n` invented exponential decays `y = a*exp(-0.5*x)`, a = 10, 11, …,
+/// with group `fail` given two rows only (too few to fit), written last.
+fn decay_batch(dir: &Path, n: usize, fail: &str) -> PathBuf {
+    let mut text = String::from("well,x,y\n");
+    for g in 0..n {
+        let a = 10.0 + g as f64;
+        for i in 0..10 {
+            let x = i as f64 * 0.5;
+            text += &format!("W{:02},{x},{:.9}\n", g + 1, a * (-0.5 * x).exp());
+        }
+    }
+    text += &format!("{fail},0.5,2.0\n{fail},1.0,1.5\n");
+    let p = dir.join("wells.csv");
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+#[test]
+fn many_groups_get_panels_on_a_common_y_scale_failed_first() {
+    let d = scratch("many");
+    let data = decay_batch(&d, 14, "Z9");
+    let html_path = d.join("many.html");
+    let (code, _, err) = run(&[
+        "report",
+        data.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--by",
+        "well",
+        "--start",
+        "a=10,k=0.4",
+        "--out",
+        html_path.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 1, "one group failed: {err}");
+    let html = std::fs::read_to_string(&html_path).unwrap();
+    // The model box shows the response.
+    assert!(html.contains("<code class=\"formula\">y = a*exp(-k*x)</code>"), "model box");
+    // 15 groups: no overlay chart, a note instead, and one grid of 15 panels.
+    let all = between(&html, "All groups", "Each group");
+    assert!(!all.contains("<svg"), "no crowded overlay");
+    assert!(all.contains("15 groups are too many to tell apart on one chart (at most 12)"), "{all}");
+    let grid = between(&html, "Each group", "Warnings");
+    assert_eq!(grid.matches("<svg").count(), 1);
+    // The failed group's panel comes first, then W01 … W14 in order.
+    let titles: Vec<usize> = std::iter::once("Z9 (failed)".to_string())
+        .chain((1..=14).map(|g| format!("W{g:02}")))
+        .map(|t| grid.find(&format!("\n{t}\n</text>")).unwrap_or_else(|| panic!("panel {t}")))
+        .collect();
+    assert!(titles.windows(2).all(|w| w[0] < w[1]), "panel order {titles:?}");
+    // A common y scale: y runs from 0.9 to 23 over all groups, so every panel,
+    // even W01's (y ≤ 10), carries the same top tick label 20.
+    assert_eq!(grid.matches("\n20\n</text>").count(), 15, "a shared top tick in each panel");
+    // The failed row stands out: its class is styled in red on the page.
+    assert!(html.contains("<tr class=\"failed\"><td>Z9</td><td>failed</td>"));
+    assert!(html.contains("table.groups tbody tr.failed td:nth-child(2) { color: #b3261e;"));
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn a_few_groups_share_one_chart_and_the_panels_share_y() {
+    let d = scratch("few");
+    let data = decay_batch(&d, 3, "Z9");
+    let html_path = d.join("few.html");
+    let (code, _, err) = run(&[
+        "report",
+        data.to_str().unwrap(),
+        "--model",
+        "a*exp(-k*x)",
+        "--by",
+        "well",
+        "--start",
+        "a=10,k=0.4",
+        "--out",
+        html_path.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 1, "{err}");
+    let html = std::fs::read_to_string(&html_path).unwrap();
+    let all = between(&html, "All groups", "Each group");
+    assert_eq!(all.matches("<svg").count(), 1, "the overlay chart");
+    for g in ["W01", "W02", "W03", "Z9 (failed)"] {
+        assert!(all.contains(&format!("\n{g}\n</text>")), "legend {g}");
+    }
+    // Four distinct marker colours in the overlay (one per group).
+    for c in ["#0072B2", "#D55E00", "#009E73", "#CC79A7"] {
+        assert!(all.contains(c), "colour {c}");
+    }
+    let grid = between(&html, "Each group", "Warnings");
+    assert!(grid.contains("Groups that failed or did not converge come first."));
+    let z9 = grid.find("\nZ9 (failed)\n</text>").expect("failed panel");
+    let w1 = grid.find("\nW01\n</text>").expect("W01 panel");
+    assert!(z9 < w1, "failed panel first");
+    // y runs to 12 (W03's a): every converged panel has the tick 12.
+    assert!(grid.matches("\n12\n</text>").count() >= 3, "shared y ticks");
+    let _ = std::fs::remove_dir_all(&d);
 }
 
 /// Runs a command with a deadline, its output going to files in `dir` (a

@@ -30,19 +30,9 @@ fn fit_from(p: &StrdProblem, start: &[f64]) -> (Vec<f64>, Vec<f64>, f64) {
     (res.params, se, res.ssr)
 }
 
-/// Adjusts for a published convention the engine need not share: the certified b1 of
-/// the arctan model assumes a branch of arctan in (0, π); with the principal branch
-/// (−π/2, π/2) the same optimum has b1 smaller by exactly 1 (arctan(u)/π differs by 1).
-fn align_branch(name: &str, est: &mut [f64], cert: &[f64]) {
-    if name == "Roszman1" && (est[0] + 1.0 - cert[0]).abs() < (est[0] - cert[0]).abs() {
-        est[0] += 1.0;
-    }
-}
-
 #[test]
 fn nist_strd_from_published_starts() {
-    if strd::strd_dir().is_none() {
-        strd::announce_missing();
+    if strd::require_dir().is_none() {
         return;
     }
     let mut lres = Vec::new();
@@ -59,7 +49,7 @@ fn nist_strd_from_published_starts() {
         let (mut ssr_lre, mut se_lre) = (11.0_f64, 11.0_f64);
         for (k, start) in p.starts.iter().enumerate() {
             let (mut est, se, ssr) = fit_from(&p, start);
-            align_branch(name, &mut est, &p.certified);
+            strd::align_branch(name, &mut est, &p.certified);
             ssr_lre = ssr_lre.min(strd::lre(ssr, p.certified_ssr));
             se_lre = se_lre.min(strd::min_lre(&se, &p.certified_sd));
             let l = strd::min_lre(&est, &p.certified);

@@ -1,6 +1,7 @@
 //! The command line's shape (clap 4 derive): one struct per subcommand, built
 //! from shared groups so that later commands extend them easily.
 
+use crate::data::{parse_decimal, parse_separator, DecimalMark, Separator};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use std::path::PathBuf;
 
@@ -45,12 +46,35 @@ pub struct InputArgs {
     /// Data column for the model's variable `x` (library models are written in x).
     #[arg(long = "x", value_name = "COLUMN")]
     pub x: Option<String>,
-    /// Response column when the formula has no left-hand side [default: y].
-    #[arg(long = "y", value_name = "COLUMN")]
+    /// Response column when the formula has no left-hand side [default: y]. Several
+    /// replicate columns, as a list (rep1,rep2,rep3), a range (rep1..rep3) or a
+    /// pattern (rep*), are pooled into one response (one observation per non-empty
+    /// cell), named by the formula's left-hand side, else y.
+    #[arg(long = "y", value_name = "COLUMN|COLUMNS")]
     pub y: Option<String>,
     /// Workbook sheet, by name or 1-based number [default: the first].
     #[arg(long, value_name = "SHEET")]
     pub sheet: Option<String>,
+    /// Cell delimiter of a text file: one character such as ';' or '|', or tab, space
+    /// (runs of spaces) [default: guessed from the first lines].
+    #[arg(long, value_name = "CHAR", value_parser = parse_separator)]
+    pub delimiter: Option<Separator>,
+    /// Decimal mark of a text file: . or , [default: ., or , in a ';'-separated
+    /// file whose numbers are written 1,5].
+    #[arg(long, value_name = "MARK", value_parser = parse_decimal)]
+    pub decimal: Option<DecimalMark>,
+    /// Row of the column names: line of a text file or row of a sheet, 1-based
+    /// [default: the first row of names followed by a row of numbers; rows above are titles].
+    #[arg(long, value_name = "N")]
+    pub header_row: Option<usize>,
+    /// Wide layout with one column per sample: each column named (a list S1,S2, a
+    /// range S1..S12 or a pattern S*) becomes a group of its own, fitted separately
+    /// (fit and report); the groups are labelled `sample`.
+    #[arg(long, value_name = "COLUMNS")]
+    pub wide_groups: Option<String>,
+    /// Replicate columns pooled into the response (set from `--y COLUMNS`).
+    #[arg(skip)]
+    pub pooled_y: Option<String>,
 }
 
 /// How results are printed.

@@ -15,7 +15,9 @@ use crate::data::Dataset;
 use crate::error::Error;
 use crate::fit::problem::Problem;
 use crate::report::fit_table::{format_number, SIGNIFICANT};
-use crate::report::formats::{aligned_table, csv_line, csv_number, to_json, to_yaml, Align};
+use crate::report::formats::{
+    aligned_table, csv_line, csv_number, identifiable_cell, to_json, to_yaml, Align,
+};
 use crate::search::SearchOptions;
 use crate::symbolic::Model;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
@@ -56,6 +58,9 @@ pub struct GroupParameter {
     pub name: String,
     pub estimate: Option<f64>,
     pub std_error: Option<f64>,
+    /// Whether the group's data determine the parameter (`None`: undefined
+    /// or not fitted); see `fit::stats::identifiability`.
+    pub identifiable: Option<bool>,
 }
 
 /// The summary row of one group (written with [`KeyedRow`], which names the
@@ -157,6 +162,7 @@ fn summary_names(params: &[String]) -> Vec<String> {
         names.push(format!("se({p})"));
         names.push(format!("{p}_estimate"));
         names.push(format!("{p}_std_error"));
+        names.push(format!("{p}_identifiable"));
     }
     names
 }
@@ -310,6 +316,7 @@ fn fit_group(
                 name: n.clone(),
                 estimate: None,
                 std_error: None,
+                identifiable: None,
             })
             .collect(),
         message,
@@ -361,6 +368,7 @@ fn fit_group(
                 name: p.name.clone(),
                 estimate: finite(p.estimate),
                 std_error: finite(p.std_error),
+                identifiable: p.identifiable,
             })
             .collect(),
         message: notes.join("; "),
@@ -514,6 +522,12 @@ pub fn batch_groups(
         return Err(Error::Usage(format!("--by {by}: the column has no values")));
     }
     let mut warnings = spec.notes;
+    if groups.len() > 1 && groups.iter().all(|(_, rows)| rows.len() == 1) {
+        warnings.push(format!(
+            "--by {by} makes {} groups of one row each: almost certainly not the column that names the groups (each fit has one point)",
+            groups.len()
+        ));
+    }
     if missing > 0 {
         warnings.push(format!(
             "skipped {missing} row{} with an empty '{by}' cell",
@@ -604,6 +618,9 @@ pub fn run_batch(
     Ok(unfinished.map_or(Outcome::Success, Outcome::NotConverged))
 }
 
+/// Mark beside an estimate the group's data do not determine, in the table.
+const NOT_IDENTIFIABLE_MARK: &str = " (n.i.)";
+
 /// CSV header of the batch summary for these parameters; the first column
 /// is named after the `--by` column.
 pub fn batch_csv_header(by: &str, params: &[String]) -> Vec<String> {
@@ -614,6 +631,9 @@ pub fn batch_csv_header(by: &str, params: &[String]) -> Vec<String> {
     for p in params {
         h.push(format!("{p}_estimate"));
         h.push(format!("{p}_std_error"));
+    }
+    for p in params {
+        h.push(format!("{p}_identifiable"));
     }
     h.push("message".into());
     h
@@ -637,6 +657,9 @@ pub fn batch_csv(doc: &BatchDoc, params: &[String]) -> String {
         for p in &r.parameters {
             cells.push(opt_csv(p.estimate));
             cells.push(opt_csv(p.std_error));
+        }
+        for p in &r.parameters {
+            cells.push(identifiable_cell(p.identifiable));
         }
         cells.push(r.message.clone());
         out += &csv_line(&cells);
@@ -672,7 +695,12 @@ pub fn batch_table(doc: &BatchDoc, params: &[String]) -> String {
                 num(r.ssr),
             ];
             for p in &r.parameters {
-                c.push(num(p.estimate));
+                let mark = if p.identifiable == Some(false) {
+                    NOT_IDENTIFIABLE_MARK
+                } else {
+                    ""
+                };
+                c.push(num(p.estimate) + mark);
                 c.push(num(p.std_error));
             }
             c
@@ -688,6 +716,17 @@ pub fn batch_table(doc: &BatchDoc, params: &[String]) -> String {
         doc.by
     );
     out += &aligned_table(&heads, &align, &rows);
+    let marked = doc
+        .groups
+        .iter()
+        .flat_map(|r| &r.parameters)
+        .any(|p| p.identifiable == Some(false));
+    if marked {
+        out += &format!(
+            "\n{} not identifiable from that group's data (see notes)\n",
+            NOT_IDENTIFIABLE_MARK.trim()
+        );
+    }
     let notes: Vec<String> = doc
         .groups
         .iter()

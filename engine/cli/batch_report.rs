@@ -15,12 +15,26 @@ use crate::data::Dataset;
 use crate::error::Error;
 use crate::report::assemble::fit_sheet;
 use crate::report::batch_html::{render_batch_report, BatchGroupRow, BatchReportInput};
-use crate::report::plot::{group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay};
+use crate::report::html::formula_with_response;
+use crate::report::plot::{
+    common_y_range, group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay,
+    MAX_OVERLAY_GROUPS,
+};
 use crate::symbolic::Model;
 use std::io::Write;
 
-/// Most groups drawn as separate panels; the overlay and the table show them all.
-pub const MAX_PANELS: usize = 24;
+/// Most groups drawn as separate panels (failed groups first); the table shows them all.
+pub const MAX_PANELS: usize = 48;
+
+/// Order of the panels: failed groups first, then those that did not
+/// converge, then the rest, each in order of first appearance.
+fn panel_rank(status: GroupStatus) -> u8 {
+    match status {
+        GroupStatus::Failed => 0,
+        GroupStatus::NotConverged => 1,
+        GroupStatus::Converged => 2,
+    }
+}
 
 /// The points and fitted curve of one group for the plots.
 fn series(fit: &GroupFit, model: &Model, data: &Dataset, rows: &[usize]) -> GroupSeries {
@@ -103,18 +117,43 @@ pub fn run_batch_report(
         y_label: y_label.clone(),
         groups: all.clone(),
     };
-    let panels: Vec<_> = all
+    // Past twelve groups one chart gets crowded: the panels below replace it.
+    let (overlay_svg_text, overlay_note) = if all.len() > MAX_OVERLAY_GROUPS {
+        (
+            String::new(),
+            format!(
+                "{} groups are too many to tell apart on one chart (at most {MAX_OVERLAY_GROUPS}); \
+                 each group has its own panel below, all on a common y scale.",
+                all.len()
+            ),
+        )
+    } else {
+        (overlay_svg(&overlay), String::new())
+    };
+    let mut order: Vec<usize> = (0..fits.len()).collect();
+    order.sort_by_key(|&i| panel_rank(fits[i].row.status));
+    let y_range = common_y_range(&all);
+    let panels: Vec<_> = order
         .iter()
         .take(MAX_PANELS)
-        .map(|g| group_panel(g, &x_name, &y_label))
+        .map(|&i| {
+            let mut p = group_panel(&all[i], &x_name, &y_label);
+            p.y_range = y_range;
+            p
+        })
         .collect();
+    let failed_first = if order.iter().any(|&i| fits[i].row.status != GroupStatus::Converged) {
+        " Groups that failed or did not converge come first."
+    } else {
+        ""
+    };
     let grid_caption = if all.len() > MAX_PANELS {
         format!(
-            "Each group's data and fitted curve: the first {MAX_PANELS} of {} groups (all are in the table and the chart above).",
+            "Each group's data and fitted curve on a common y scale: {MAX_PANELS} of {} groups (all are in the table above).{failed_first}",
             all.len()
         )
     } else {
-        "Each group's data and fitted curve on its own axes.".to_string()
+        format!("Each group's data and fitted curve on its own panel, all on a common y scale.{failed_first}")
     };
 
     let rows: Vec<BatchGroupRow> = fits
@@ -184,12 +223,13 @@ pub fn run_batch_report(
     let input = BatchReportInput {
         title,
         date: report_date(),
-        model: model.text.clone(),
+        model: formula_with_response(&model.text, &model.response_text()),
         data_facts,
         by: by.clone(),
         parameters: model.params.clone(),
         groups: rows,
-        overlay_svg: overlay_svg(&overlay),
+        overlay_svg: overlay_svg_text,
+        overlay_note,
         grid_svg: group_grid_svg(&panels),
         grid_caption,
         warnings: warnings.clone(),

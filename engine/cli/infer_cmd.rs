@@ -6,9 +6,11 @@ use super::prepare::{bind_input, read_input};
 use super::provenance::{Run, WithRun};
 use super::Outcome;
 use crate::error::Error;
+use crate::features::shape::Direction;
 use crate::features::{XAxis, YTransform};
 use crate::infer::{infer, InferOptions, Inference};
 use crate::report::fit_table::format_number;
+use crate::report::formats::csv_number;
 use serde::Serialize;
 use std::io::Write;
 use std::time::Instant;
@@ -74,11 +76,7 @@ pub fn run_infer(
 pub fn infer_csv(inf: &Inference) -> String {
     let mut s = String::from("name,start,derivation\n");
     for p in &inf.parameters {
-        let v = if p.start.is_finite() {
-            format!("{:e}", p.start)
-        } else {
-            String::new()
-        };
+        let v = csv_number(p.start);
         s.push_str(&format!(
             "{},{},\"{}\"\n",
             p.name,
@@ -87,6 +85,16 @@ pub fn infer_csv(inf: &Inference) -> String {
         ));
     }
     s
+}
+
+/// A curve's direction in plain words, as the table prints it.
+fn direction_words(d: Direction) -> &'static str {
+    match d {
+        Direction::Increasing => "increasing",
+        Direction::Decreasing => "decreasing",
+        Direction::NotMonotone => "rises and falls",
+        Direction::Flat => "flat",
+    }
 }
 
 fn fmt(v: f64) -> String {
@@ -131,7 +139,7 @@ pub fn infer_table(inf: &Inference, model: &str, source: &str) -> String {
     if let Some(v) = inf.features.view(XAxis::Linear, YTransform::Identity) {
         let f = &v.features;
         if let Some(m) = &f.monotonicity {
-            s.push_str(&format!("  shape: {:?}\n", m.direction));
+            s.push_str(&format!("  shape: {}\n", direction_words(m.direction)));
         }
         for (label, p) in [("low end", &f.low_plateau), ("high end", &f.high_plateau)] {
             if let Some(p) = p {

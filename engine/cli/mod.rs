@@ -70,11 +70,32 @@ where
         Ok(c) => c,
         Err(e) => return clap_exit(e, out, err),
     };
+    // Wide layouts (--y COLUMNS, --wide-groups) are applied to the arguments
+    // here, so every command reads the table in long form.
+    let layout = prepare::layout_args;
     let result = match &cli.command {
-        Command::Fit(a) => fit_cmd::run_fit(a, &run, out, err),
-        Command::Infer(a) => infer_cmd::run_infer(a, &run, out, err),
-        Command::Rank(a) => rank_cmd::run_rank(a, &run, out, err),
-        Command::Report(a) => report_cmd::run_report(a, &run, out, err),
+        Command::Fit(a) => layout(&a.input, a.by.as_ref(), true).and_then(|(input, by)| {
+            let a = args::FitArgs { input, by, ..a.clone() };
+            fit_cmd::run_fit(&a, &run, out, err)
+        }),
+        Command::Infer(a) => layout(&a.input, None, false).and_then(|(input, _)| {
+            let a = args::InferArgs { input, ..a.clone() };
+            infer_cmd::run_infer(&a, &run, out, err)
+        }),
+        Command::Rank(a) => {
+            layout(&a.input, a.search.by.as_ref(), false).and_then(|(input, by)| {
+                let search = args::SearchArgs { by, ..a.search.clone() };
+                let a = args::RankArgs { input, search, ..a.clone() };
+                rank_cmd::run_rank(&a, &run, out, err)
+            })
+        }
+        Command::Report(a) => {
+            layout(&a.input, a.search.by.as_ref(), true).and_then(|(input, by)| {
+                let search = args::SearchArgs { by, ..a.search.clone() };
+                let a = args::ReportArgs { input, search, ..a.clone() };
+                report_cmd::run_report(&a, &run, out, err)
+            })
+        }
         Command::Models(a) => models_cmd::run_models(a, out),
     };
     match result {

@@ -6,7 +6,8 @@ use super::args::InputArgs;
 use super::model_arg::{bind_model, resolve_model, ModelSpec};
 use super::starts::parse_starts;
 use crate::auto_start::starts_for;
-use crate::data::{read_table, Dataset, ReadOptions};
+use crate::data::{is_column_spec, match_columns, read_table_noted, stack_columns};
+use crate::data::{DataError, Dataset, DecimalMark, ReadNotes, ReadOptions};
 use crate::error::Error;
 use crate::fit::lm::{levenberg_marquardt, LmOptions, LmResult};
 use crate::fit::problem::Problem;
@@ -16,14 +17,56 @@ use crate::symbolic::Model;
 use std::io::Write;
 use std::time::Instant;
 
-/// Reads the table named by the input arguments (and reports it when verbose).
+/// Name of the label column that `--wide-groups` makes (the `--by` column of the batch).
+pub const WIDE_GROUP_LABEL: &str = "sample";
+
+/// Applies the wide-layout options to a command's input before it runs:
+/// `--y COLUMNS` (a list, range or pattern) moves to the reader, which pools
+/// those columns into the response, and `--wide-groups` becomes `--by
+/// sample`; `batch` says whether the command fits groups (fit, report).
+pub fn layout_args(
+    input: &InputArgs,
+    by: Option<&String>,
+    batch: bool,
+) -> Result<(InputArgs, Option<String>), Error> {
+    let mut input = input.clone();
+    let mut by = by.cloned();
+    if input.wide_groups.is_some() {
+        if !batch {
+            return Err(Error::Usage(
+                "--wide-groups fits one curve per column; use it with fit or report".into(),
+            ));
+        }
+        if by.is_some() {
+            return Err(Error::Usage(
+                "--wide-groups makes the groups (one per column); drop --by".into(),
+            ));
+        }
+        if input.y.is_some() {
+            return Err(Error::Usage(
+                "--wide-groups: the wide columns hold the response; drop --y".into(),
+            ));
+        }
+        by = Some(WIDE_GROUP_LABEL.to_string());
+    }
+    if input.y.as_deref().is_some_and(is_column_spec) {
+        input.pooled_y = input.y.take();
+    }
+    Ok((input, by))
+}
+
+/// Reads the table named by the input arguments, in long form (wide columns
+/// stacked, see [`layout_args`]), and reports how when verbose.
 pub fn read_input(input: &InputArgs, verbose: bool, err: &mut dyn Write) -> Result<Dataset, Error> {
     let clock = Instant::now();
     let opts = ReadOptions {
         sheet: input.sheet.clone(),
+        delimiter: input.delimiter,
+        decimal: input.decimal,
+        header_row: input.header_row,
         ..ReadOptions::default()
     };
-    let data = read_table(&input.data, &opts)?;
+    let (mut data, notes) = read_table_noted(&input.data, &opts)?;
     if verbose {
         let _ = writeln!(
             err,
@@ -34,8 +77,81 @@ pub fn read_input(input: &InputArgs, verbose: bool, err: &mut dyn Write) -> Resu
             data.source,
             clock.elapsed().as_secs_f64() * 1e3
         );
+        let _ = writeln!(err, "foothold: {}", layout_note(&notes));
+    }
+    let wide = match (&input.pooled_y, &input.wide_groups) {
+        (Some(spec), _) => Some((spec, "--y", None)),
+        (None, Some(spec)) => Some((spec, "--wide-groups", Some(WIDE_GROUP_LABEL))),
+        (None, None) => None,
+    };
+    if let Some((spec, option, label)) = wide {
+        let columns = match_columns(&data, spec, option)?;
+        let value = response_name(input, &data, &columns);
+        let stacked = stack_columns(&data, &columns, &value, label)?;
+        if verbose {
+            let _ = writeln!(
+                err,
+                "foothold: {option} {spec}: stacked {} into '{value}'{}: {} observations from {} rows ({} empty cell{} left out)",
+                columns.join(", "),
+                label.map(|l| format!(", one group per column ('{l}')")).unwrap_or_default(),
+                stacked.data.n_rows(),
+                stacked.rows_in,
+                stacked.empty_cells,
+                if stacked.empty_cells == 1 { "" } else { "s" }
+            );
+        }
+        data = stacked.data;
+        if data.n_rows() == 0 {
+            return Err(DataError::NoCompleteRows {
+                path: data.source.clone(),
+                columns: columns.join(", "),
+            }
+            .into());
+        }
     }
     Ok(data)
+}
+
+/// The `--verbose` line on how the table was laid out.
+fn layout_note(notes: &ReadNotes) -> String {
+    let mut parts = vec![format!("header on row {}", notes.header_row)];
+    if !notes.title_rows.is_empty() {
+        let rows: Vec<String> = notes.title_rows.iter().map(|r| r.to_string()).collect();
+        parts.push(format!(
+            "skipped {} title row{} above it ({})",
+            rows.len(),
+            if rows.len() == 1 { "" } else { "s" },
+            rows.join(", ")
+        ));
+    }
+    if let Some(sep) = &notes.separator {
+        parts.push(format!("cells separated by {sep}"));
+        parts.push(match notes.decimal {
+            DecimalMark::Point => "decimal point".into(),
+            DecimalMark::Comma => "decimal comma".into(),
+        });
+    }
+    parts.join("; ")
+}
+
+/// The name of the pooled response: the formula's left-hand side when it
+/// names one column not in the table (or among the stacked ones), else `y`.
+fn response_name(input: &InputArgs, data: &Dataset, stacked: &[String]) -> String {
+    let Ok(spec) = resolve_model(&input.model, input.x.as_deref(), &data.columns) else {
+        return "y".into();
+    };
+    let Some(lhs) = &spec.parsed.lhs else {
+        return "y".into();
+    };
+    let names: Vec<&String> = (0..spec.parsed.names.len())
+        .filter(|&i| lhs.has_param(i))
+        .map(|i| &spec.parsed.names[i])
+        .filter(|n| !data.has_column(n) || stacked.contains(n))
+        .collect();
+    match names.as_slice() {
+        [one] => one.to_string(),
+        _ => "y".into(),
+    }
 }
 
 /// Checks that `--x`/`--y`-style options name columns of the data.

@@ -9,6 +9,7 @@ use super::Outcome;
 use crate::auto_start::infer_and_search;
 use crate::error::Error;
 use crate::report::fit_table::format_number;
+use crate::report::formats::csv_number;
 use crate::search::{SearchOptions, SearchOutcome};
 use serde::Serialize;
 use std::io::Write;
@@ -28,8 +29,42 @@ pub struct RankedCandidate {
     pub parameters: Vec<RankedParam>,
     pub ssr: Option<f64>,
     pub share: Option<f64>,
-    pub iterations: Option<f64>,
+    /// Median iterations, rounded to a whole number.
+    pub iterations: Option<u64>,
     pub divergent: Vec<String>,
+    /// Why this minimum ranks below one with a higher sum of squares (a
+    /// minimum running to infinity ranks below proper minima within 1 % of
+    /// its sum of squares, `search::rank`); `null` when it is not demoted.
+    pub demoted: Option<String>,
+}
+
+/// Ranks of the proper minima placed above minimum `k` although their sums of
+/// squares are higher: non-empty only for a demoted divergent minimum.
+fn demoted_below(outcome: &SearchOutcome, k: usize) -> Vec<usize> {
+    let m = &outcome.minima[k];
+    if m.divergent.is_empty() || !m.ssr.is_finite() {
+        return Vec::new();
+    }
+    outcome.minima[..k]
+        .iter()
+        .filter(|o| o.divergent.is_empty() && o.ssr > m.ssr)
+        .map(|o| o.rank)
+        .collect()
+}
+
+/// The demotion note of minimum `k`, if it was demoted.
+fn demotion_note(outcome: &SearchOutcome, k: usize) -> Option<String> {
+    let above = demoted_below(outcome, k);
+    if above.is_empty() {
+        return None;
+    }
+    let list: Vec<String> = above.iter().map(|r| r.to_string()).collect();
+    Some(format!(
+        "ranked below rank {} despite a lower sum of squares: it runs to infinity, and a \
+         proper minimum within {} % of its sum of squares ranks above it",
+        list.join(", "),
+        crate::search::rank::COMPARABLE * 100.0
+    ))
 }
 
 fn finite(v: f64) -> Option<f64> {
@@ -56,8 +91,9 @@ pub fn ranked(names: &[String], outcome: &SearchOutcome, top: usize) -> Vec<Rank
     outcome
         .minima
         .iter()
+        .enumerate()
         .take(top)
-        .map(|m| RankedCandidate {
+        .map(|(k, m)| RankedCandidate {
             rank: m.rank,
             parameters: names
                 .iter()
@@ -70,14 +106,20 @@ pub fn ranked(names: &[String], outcome: &SearchOutcome, top: usize) -> Vec<Rank
                 .collect(),
             ssr: finite(m.ssr),
             share: finite(m.share),
-            iterations: finite(m.iterations_median),
+            iterations: finite(m.iterations_median).map(|v| v.round().max(0.0) as u64),
             divergent: m
                 .divergent
                 .iter()
                 .filter_map(|&i| names.get(i).cloned())
                 .collect(),
+            demoted: demotion_note(outcome, k),
         })
         .collect()
+}
+
+/// A share (0..1) as a percentage with one decimal, e.g. "37.5 %".
+pub fn percent(share: f64) -> String {
+    format!("{:.1} %", 100.0 * share)
 }
 
 /// Runs `rank`.
@@ -144,7 +186,7 @@ pub fn run_rank(
             let mut s = String::from("rank,parameter,start,estimate,ssr,share,iterations\n");
             for c in &list {
                 for p in &c.parameters {
-                    let f = |v: Option<f64>| v.map(|x| format!("{x:e}")).unwrap_or_default();
+                    let f = |v: Option<f64>| v.map(csv_number).unwrap_or_default();
                     s.push_str(&format!(
                         "{},{},{},{},{},{},{}\n",
                         c.rank,
@@ -153,7 +195,7 @@ pub fn run_rank(
                         f(p.estimate),
                         f(c.ssr),
                         f(c.share),
-                        f(c.iterations)
+                        c.iterations.map(|i| i.to_string()).unwrap_or_default()
                     ));
                 }
             }
@@ -175,14 +217,21 @@ pub fn run_rank(
                     "\nrank {}  ssr {}  share {}  median iterations {}{}\n",
                     c.rank,
                     g(c.ssr),
-                    g(c.share),
-                    g(c.iterations),
+                    c.share
+                        .map(percent)
+                        .unwrap_or_else(|| "n/a".into()),
+                    c.iterations
+                        .map(|i| i.to_string())
+                        .unwrap_or_else(|| "n/a".into()),
                     if c.divergent.is_empty() {
                         String::new()
                     } else {
                         format!("  runs to infinity: {}", c.divergent.join(", "))
                     }
                 ));
+                if let Some(d) = &c.demoted {
+                    s.push_str(&format!("  note: {d}\n"));
+                }
                 let w = c
                     .parameters
                     .iter()

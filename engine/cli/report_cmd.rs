@@ -111,7 +111,7 @@ fn searched_starts(problem: &Problem, opts: &SearchOptions) -> Result<SearchedSt
                 rank: c.rank,
                 ssr: c.ssr.unwrap_or(f64::NAN),
                 share: c.share.unwrap_or(f64::NAN),
-                iterations: c.iterations.map_or(0, |v| v.round() as usize),
+                iterations: c.iterations.map_or(0, |v| v as usize),
                 parameters: if c.divergent.is_empty() {
                     point
                 } else {

@@ -1,39 +1,33 @@
-//! Delimited text with a header line: the separator (comma, tab, or runs of
-//! whitespace) is detected from the header; cells are trimmed; double quotes
-//! may wrap a cell (`""` inside is a literal quote); blank lines and lines
-//! starting with `#` are skipped; empty cells are missing (NaN); columns
-//! with cells that are not numbers are also kept as text.
+//! Delimited text into a dataset: the delimiter (`,` `;` tab `|`, or runs of
+//! whitespace), the decimal mark and the header row are guessed (see
+//! `sniff`) unless given; rows above the header (titles) are skipped and
+//! noted; cells are trimmed; empty cells are missing (NaN); columns with
+//! cells that are not numbers are also kept as text. Records come from
+//! `records` (the `csv` crate), so quoted cells may hold line breaks.
 
+use super::records::{normalise_line_ends, records, Record, Separator};
+use super::sniff::{class_of, detect_decimal, detect_separator, find_header, parse_number};
+use super::sniff::{Class, DecimalMark, SNIFF_ROWS};
 use super::text::{TextBuilder, TextColumn};
-use super::{DataError, Dataset, MAX_CELLS};
+use super::{DataError, Dataset, ReadNotes, ReadOptions, MAX_CELLS};
 
-/// How cells are separated on a line.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub(crate) enum Separator {
-    Comma,
-    Tab,
-    /// One or more spaces or tabs.
-    Whitespace,
-}
-
-/// Parses delimited text with a header into a dataset (cell limit [`MAX_CELLS`]).
+/// Parses delimited text with a header into a dataset (default options,
+/// cell limit [`MAX_CELLS`]).
 pub fn parse_delimited(text: &str, source: &str) -> Result<Dataset, DataError> {
     parse_delimited_limited(text, source, MAX_CELLS)
 }
 
-/// The lines after the header that hold data: (1-based line number, text).
-fn data_lines(text: &str) -> impl Iterator<Item = (usize, &str)> {
-    // Files from old spreadsheet exports end lines with a carriage return alone.
-    let cr_only = text.contains('\r') && !text.contains('\n');
-    let lines: Box<dyn Iterator<Item = &str>> = if cr_only {
-        Box::new(text.split('\r'))
-    } else {
-        Box::new(text.lines())
+/// Parses delimited text with default options, refusing more than `max_cells` cells.
+pub(crate) fn parse_delimited_limited(
+    text: &str,
+    source: &str,
+    max_cells: usize,
+) -> Result<Dataset, DataError> {
+    let opts = ReadOptions {
+        max_cells,
+        ..ReadOptions::default()
     };
-    lines.enumerate().map(|(i, l)| (i + 1, l)).filter(|(_, l)| {
-        let t = l.trim();
-        !t.is_empty() && !t.starts_with('#')
-    })
+    parse_delimited_with(text, source, &opts).map(|(d, _)| d)
 }
 
 /// The error for a cell that is not a finite number.
@@ -56,34 +50,101 @@ fn cell_error(source: &str, line: usize, column: &str, cell: &str, finite: bool)
     }
 }
 
-/// Parses delimited text, refusing more than `max_cells` cells. A column
-/// with a cell that is not a number is also kept as text (a second pass
-/// over the lines, only for such columns).
-pub(crate) fn parse_delimited_limited(
+/// The header: how many records come before it, its line and its cells.
+type Header = (usize, usize, Vec<String>);
+
+/// The header given by `--header-row N` (a line number of the file).
+fn header_at_line(text: &str, sep: Separator, source: &str, n: usize) -> Result<Header, DataError> {
+    let mut before = 0;
+    for r in records(text, sep, source) {
+        let (line, cells) = r?;
+        if line == n {
+            return Ok((before, line, cells));
+        }
+        if line > n {
+            break;
+        }
+        before += 1;
+    }
+    let lines = text.lines().count();
+    if n > lines || n == 0 {
+        return Err(DataError::HeaderRowBeyondEnd {
+            path: source.to_string(),
+            row: n,
+            last: lines,
+        });
+    }
+    Err(DataError::HeaderRowNotARow {
+        path: source.to_string(),
+        row: n,
+    })
+}
+
+/// The header found among the first records ([`find_header`]), else the first record.
+fn header_found(
+    text: &str,
+    sep: Separator,
+    source: &str,
+    mark: DecimalMark,
+) -> Result<Header, DataError> {
+    let head: Vec<Record> = records(text, sep, source)
+        .take(SNIFF_ROWS)
+        .collect::<Result<_, _>>()?;
+    if head.is_empty() {
+        return Err(DataError::Empty {
+            path: source.to_string(),
+        });
+    }
+    let classes: Vec<Vec<Class>> = head
+        .iter()
+        .map(|(_, cells)| cells.iter().map(|c| class_of(c, mark)).collect())
+        .collect();
+    let k = find_header(&classes, true).unwrap_or(0);
+    let (line, cells) = head.into_iter().nth(k).unwrap_or_default();
+    Ok((k, line, cells))
+}
+
+/// Parses delimited text with the layout options of `opts` (delimiter,
+/// decimal mark, header row; guessed when not given), refusing more than
+/// `opts.max_cells` cells. A column with a cell that is not a number is
+/// also kept as text (a second pass, only for such columns).
+pub fn parse_delimited_with(
     text: &str,
     source: &str,
-    max_cells: usize,
-) -> Result<Dataset, DataError> {
+    opts: &ReadOptions,
+) -> Result<(Dataset, ReadNotes), DataError> {
     let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let text = normalise_line_ends(text);
+    let text = text.as_ref();
     let path = || source.to_string();
-    let mut lines = data_lines(text);
-    let (header_line, header) = lines
-        .next()
-        .ok_or_else(|| DataError::Empty { path: path() })?;
-    let sep = detect_separator(header);
-    let columns = split_cells(header, sep).ok_or_else(|| DataError::UnterminatedQuote {
-        path: path(),
-        line: header_line,
-    })?;
-    check_header(&columns, source, header_line)?;
+    let sep = opts.delimiter.unwrap_or_else(|| detect_separator(text));
+    let mark = match opts.decimal {
+        Some(m) => m,
+        None => detect_decimal(sep, records(text, sep, source), source)?,
+    };
+    if mark == DecimalMark::Comma && sep == Separator::Byte(b',') {
+        return Err(DataError::DecimalIsDelimiter { path: path() });
+    }
+    let (skip, header_line, columns) = match opts.header_row {
+        Some(n) => header_at_line(text, sep, source, n)?,
+        None => header_found(text, sep, source, mark)?,
+    };
+    check_header(&columns, source, header_line, mark)?;
     let n_cols = columns.len();
     let mut values: Vec<Vec<f64>> = vec![Vec::new(); n_cols];
     // Per column, the first cell that is not a finite number and where it is.
     let mut first_bad: Vec<Option<(DataError, usize)>> = vec![None; n_cols];
     let mut cells = n_cols;
-    for (line, text) in lines {
-        let row = split_cells(text, sep)
-            .ok_or_else(|| DataError::UnterminatedQuote { path: path(), line })?;
+    let mut title_rows = Vec::with_capacity(skip);
+    for (k, r) in records(text, sep, source).enumerate() {
+        let (line, row) = r?;
+        if k < skip {
+            title_rows.push(line);
+            continue;
+        }
+        if k == skip {
+            continue;
+        }
         if row.len() != n_cols {
             return Err(DataError::Ragged {
                 path: path(),
@@ -93,15 +154,15 @@ pub(crate) fn parse_delimited_limited(
             });
         }
         cells = cells.saturating_add(n_cols);
-        if cells > max_cells {
+        if cells > opts.max_cells {
             return Err(DataError::TooManyCells {
                 path: path(),
-                limit: max_cells,
+                limit: opts.max_cells,
             });
         }
         for (j, ((cell, name), col)) in row.iter().zip(&columns).zip(values.iter_mut()).enumerate()
         {
-            match parse_cell(cell) {
+            match parse_number(cell, mark) {
                 Ok(v) => col.push(v),
                 Err(finite) => {
                     col.push(f64::NAN);
@@ -116,36 +177,29 @@ pub(crate) fn parse_delimited_limited(
     if n_rows == 0 {
         return Err(DataError::HeaderOnly { path: path() });
     }
-    // A header name and a cell both holding ';' mean a semicolon-separated
-    // file, not a column of labels: refuse it now, with the hint.
-    let semicolons = columns
-        .iter()
-        .zip(&first_bad)
-        .find_map(|(name, bad)| match bad {
-            Some((e @ DataError::NotANumber { text, .. }, _))
-                if name.contains(';') && text.contains(';') =>
-            {
-                Some(e.clone())
-            }
-            _ => None,
-        });
-    if let Some(e) = semicolons {
-        return Err(e);
-    }
-    let text_cols = text_columns(text, sep, &columns, first_bad, n_rows);
-    Ok(Dataset {
+    let text_cols = text_columns(text, sep, source, skip, &columns, first_bad, n_rows);
+    let notes = ReadNotes {
+        title_rows,
+        header_row: header_line,
+        separator: Some(sep.describe()),
+        decimal: mark,
+    };
+    let data = Dataset {
         columns,
         values,
         text: text_cols,
         source: source.to_string(),
         skipped_rows: 0,
-    })
+    };
+    Ok((data, notes))
 }
 
 /// Reads the cells of the columns that have a bad cell again, as text.
 fn text_columns(
     text: &str,
     sep: Separator,
+    source: &str,
+    skip: usize,
     columns: &[String],
     first_bad: Vec<Option<(DataError, usize)>>,
     n_rows: usize,
@@ -160,9 +214,9 @@ fn text_columns(
         .iter()
         .map(|_| TextBuilder::with_rows(n_rows))
         .collect();
-    // The first pass accepted every line, so each splits into the header's width.
-    for (_, line) in data_lines(text).skip(1) {
-        let Some(row) = split_cells(line, sep) else {
+    // The first pass accepted every record, so each has the header's width.
+    for r in records(text, sep, source).skip(skip + 1) {
+        let Ok((_, row)) = r else {
             continue;
         };
         for (b, &j) in builders.iter_mut().zip(&wanted) {
@@ -180,22 +234,14 @@ fn text_columns(
         .collect()
 }
 
-/// A cell's value: NaN for an empty cell (missing); `Err(true)` for text that
-/// is not a number, `Err(false)` for NaN, infinities and overflowing numbers.
-fn parse_cell(cell: &str) -> Result<f64, bool> {
-    if cell.is_empty() {
-        return Ok(f64::NAN);
-    }
-    match cell.parse::<f64>() {
-        Ok(v) if v.is_finite() => Ok(v),
-        Ok(_) => Err(false),
-        Err(_) => Err(true),
-    }
-}
-
 /// Names must be non-empty and distinct, and the line must not be a data row.
-fn check_header(columns: &[String], source: &str, line: usize) -> Result<(), DataError> {
-    if columns.iter().all(|c| c.parse::<f64>().is_ok()) {
+fn check_header(
+    columns: &[String],
+    source: &str,
+    line: usize,
+    mark: DecimalMark,
+) -> Result<(), DataError> {
+    if columns.iter().all(|c| class_of(c, mark) == Class::Number) {
         return Err(DataError::NoHeader {
             path: source.to_string(),
             line,
@@ -222,80 +268,10 @@ fn check_header(columns: &[String], source: &str, line: usize) -> Result<(), Dat
     Ok(())
 }
 
-/// Tab if the header has a tab, else comma if it has a comma, else whitespace runs.
-pub(crate) fn detect_separator(header: &str) -> Separator {
-    let mut in_quotes = false;
-    let (mut tab, mut comma) = (false, false);
-    for c in header.chars() {
-        match c {
-            '"' => in_quotes = !in_quotes,
-            '\t' if !in_quotes => tab = true,
-            ',' if !in_quotes => comma = true,
-            _ => {}
-        }
-    }
-    if tab {
-        Separator::Tab
-    } else if comma {
-        Separator::Comma
-    } else {
-        Separator::Whitespace
-    }
-}
-
-/// Splits one line into trimmed cells; `None` when a quote is left open.
-pub(crate) fn split_cells(line: &str, sep: Separator) -> Option<Vec<String>> {
-    let mut cells = Vec::new();
-    let mut cur = String::new();
-    let mut started = false;
-    let mut in_quotes = false;
-    let mut chars = line.chars().peekable();
-    while let Some(c) = chars.next() {
-        if in_quotes {
-            if c == '"' {
-                if chars.peek() == Some(&'"') {
-                    cur.push('"');
-                    chars.next();
-                } else {
-                    in_quotes = false;
-                }
-            } else {
-                cur.push(c);
-            }
-            continue;
-        }
-        let is_sep = match sep {
-            Separator::Comma => c == ',',
-            Separator::Tab => c == '\t',
-            Separator::Whitespace => c.is_whitespace(),
-        };
-        if is_sep {
-            if sep != Separator::Whitespace || started {
-                cells.push(cur.trim().to_string());
-                cur.clear();
-            }
-            started = false;
-        } else if c == '"' && cur.trim().is_empty() {
-            cur.clear();
-            in_quotes = true;
-            started = true;
-        } else {
-            cur.push(c);
-            started = true;
-        }
-    }
-    if in_quotes {
-        return None;
-    }
-    if sep != Separator::Whitespace || started {
-        cells.push(cur.trim().to_string());
-    }
-    Some(cells)
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::data::{DecimalMark, Separator};
 
     #[test]
     fn lines_ended_by_a_carriage_return_alone() {
@@ -326,8 +302,8 @@ mod tests {
 
     #[test]
     fn detects_the_separator_from_the_header() {
-        assert_eq!(detect_separator("a,b"), Separator::Comma);
-        assert_eq!(detect_separator("a\tb"), Separator::Tab);
+        assert_eq!(detect_separator("a,b"), Separator::Byte(b','));
+        assert_eq!(detect_separator("a\tb"), Separator::Byte(b'\t'));
         assert_eq!(detect_separator("a b"), Separator::Whitespace);
         assert_eq!(detect_separator("\"a,b\" c"), Separator::Whitespace);
     }
@@ -449,12 +425,88 @@ mod tests {
     }
 
     #[test]
-    fn semicolons_get_a_hint() {
-        let e = parse("x;y\n1;2\n").unwrap_err();
-        assert!(
-            e.to_string().contains("semicolons are not a separator"),
-            "{e}"
+    fn semicolons_and_decimal_commas() {
+        let d = parse("x;y\n1;2\n").unwrap();
+        assert_eq!(d.values, vec![vec![1.0], vec![2.0]]);
+        // A `;` file with decimal commas, as a European-locale export writes it.
+        let d = parse("dose;signal\n0,5;1,25\n1;-2,5e1\n").unwrap();
+        assert_eq!(d.values, vec![vec![0.5, 1.0], vec![1.25, -25.0]]);
+        // Tab-separated with decimal commas: kept as text, and the message names the cause.
+        let d = parse("x\ty\n0,0\t1\n").unwrap();
+        let e = d.select(&["x", "y"]).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "t.csv, line 2, column 'x': '0,0' is not a number (decimal comma? try --decimal ,)"
         );
+        let opts = ReadOptions {
+            decimal: Some(DecimalMark::Comma),
+            ..ReadOptions::default()
+        };
+        let (d, notes) = parse_delimited_with("x\ty\n0,0\t1,5\n", "t.tsv", &opts).unwrap();
+        assert_eq!(d.values, vec![vec![0.0], vec![1.5]]);
+        assert_eq!(notes.separator.as_deref(), Some("tab"));
+        // A semicolon file read with the comma forced: the hint names the delimiter.
+        let opts = ReadOptions {
+            delimiter: Some(Separator::Byte(b',')),
+            ..ReadOptions::default()
+        };
+        let (d, _) = parse_delimited_with("x;y\n1;2\n", "t.csv", &opts).unwrap();
+        let e = d.select(&["x;y"]).unwrap_err();
+        assert!(e.to_string().ends_with("(cells separated by semicolons? try --delimiter ';')"), "{e}");
+        let opts = ReadOptions {
+            decimal: Some(DecimalMark::Comma),
+            ..ReadOptions::default()
+        };
+        let e = parse_delimited_with("x,y\n1,2\n", "t.csv", &opts).unwrap_err();
+        assert!(matches!(e, DataError::DecimalIsDelimiter { .. }));
+    }
+
+    #[test]
+    fn quoted_line_breaks_in_a_notes_column() {
+        let d = parse("t,y,note\n1,2,\"first line\nsecond line\"\n2,4,ok\n3,x,\n").unwrap();
+        assert_eq!(d.values[0], vec![1.0, 2.0, 3.0]);
+        assert_eq!(
+            d.text_column("note").unwrap().cell(0),
+            Some("first line\nsecond line")
+        );
+        // Line numbers count the line break inside the quoted cell.
+        assert!(matches!(
+            d.select(&["y"]).unwrap_err(),
+            DataError::NotANumber { line: 5, .. }
+        ));
+    }
+
+    #[test]
+    fn title_rows_above_the_header() {
+        let text = "Plate run 3, reader B\n\nExported,2026-11-02\ndose,y\n0.1,2\n0.2,3\n";
+        let (d, notes) = parse_delimited_with(text, "t.csv", &ReadOptions::default()).unwrap();
+        assert_eq!(d.columns, vec!["dose", "y"]);
+        assert_eq!(d.values, vec![vec![0.1, 0.2], vec![2.0, 3.0]]);
+        assert_eq!(notes.title_rows, vec![1, 3]);
+        assert_eq!(notes.header_row, 4);
+        let opts = |n| ReadOptions {
+            header_row: Some(n),
+            ..ReadOptions::default()
+        };
+        let (d, _) = parse_delimited_with(text, "t.csv", &opts(4)).unwrap();
+        assert_eq!(d.columns, vec!["dose", "y"]);
+        assert_eq!(
+            parse_delimited_with(text, "t.csv", &opts(9)).unwrap_err(),
+            DataError::HeaderRowBeyondEnd {
+                path: "t.csv".into(),
+                row: 9,
+                last: 6
+            }
+        );
+        assert!(matches!(
+            parse_delimited_with(text, "t.csv", &opts(2)).unwrap_err(),
+            DataError::HeaderRowNotARow { row: 2, .. }
+        ));
+        // The title row as the header: the table under it is ragged.
+        assert!(matches!(
+            parse_delimited_with("Title\nx,y\n1,2\n", "t.csv", &opts(1)).unwrap_err(),
+            DataError::Ragged { line: 2, .. }
+        ));
     }
 
     #[test]

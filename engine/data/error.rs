@@ -70,7 +70,7 @@ pub enum DataError {
         "{path}, line {line}, column '{}': '{}' is not a number{}",
         one_line(column),
         one_line(text),
-        semicolon_hint(text)
+        number_hint(text)
     )]
     NotANumber {
         path: String,
@@ -161,6 +161,42 @@ pub enum DataError {
     /// A non-numeric cell in a sheet's data rows (boxed: it is the largest variant).
     #[error("{0}")]
     TextCell(Box<SheetCellError>),
+    /// A `;`-separated file with both `1,5` and `1.5` cells: the mark cannot be guessed.
+    #[error("{path}: decimal marks are ambiguous: line {comma_line}, column {comma_column} has a decimal comma and line {point_line}, column {point_column} a decimal point; say which with --decimal , or --decimal .")]
+    AmbiguousDecimal {
+        path: String,
+        comma_line: usize,
+        comma_column: usize,
+        point_line: usize,
+        point_column: usize,
+    },
+    /// `--decimal ,` in a comma-separated file.
+    #[error("{path}: the comma cannot be both the delimiter and the decimal mark; give --delimiter ';' (or tab) or --decimal .")]
+    DecimalIsDelimiter { path: String },
+    /// `--header-row N` past the last row.
+    #[error("{path}: --header-row {row} is past the end of the table (its last row is {last})")]
+    HeaderRowBeyondEnd { path: String, row: usize, last: usize },
+    /// `--header-row N` names a blank line, a comment or a line inside a quoted cell.
+    #[error("{path}: --header-row {row} is a blank or comment row, or inside a quoted cell; give the row of the column names")]
+    HeaderRowNotARow { path: String, row: usize },
+    /// A column list, range or pattern (`--y`, `--wide-groups`) that names no column.
+    #[error(
+        "{option} '{}' matches no column of {path} (columns: {})",
+        one_line(pattern),
+        one_line(available)
+    )]
+    NoColumnMatches {
+        path: String,
+        option: String,
+        pattern: String,
+        available: String,
+    },
+    /// The column of wide-column names used where a number is needed.
+    #[error("{path}: column '{}' holds the names of the wide columns, not numbers", one_line(column))]
+    LabelColumn { path: String, column: String },
+    /// A column made by reshaping a wide table whose name the table already uses.
+    #[error("{path}: reshaping the wide columns makes a column '{}', but the table already has one; rename that column", one_line(name))]
+    ReshapeNameTaken { path: String, name: String },
     /// `--sheet` given for a text file.
     #[error("--sheet applies to workbooks (.xlsx, .xls); {path} is read as delimited text")]
     SheetOnText { path: String },
@@ -237,9 +273,12 @@ fn one_line(text: &str) -> Cow<'_, str> {
     Cow::Owned(out)
 }
 
-fn semicolon_hint(text: &str) -> &'static str {
-    if text.contains(';') {
-        "; separate cells with commas, tabs or spaces (semicolons are not a separator)"
+/// The likely cause of a cell that is not a number, when one can be named.
+fn number_hint(text: &str) -> &'static str {
+    if super::sniff::comma_number(text) {
+        " (decimal comma? try --decimal ,)"
+    } else if text.contains(';') {
+        " (cells separated by semicolons? try --delimiter ';')"
     } else {
         ""
     }

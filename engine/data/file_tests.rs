@@ -353,3 +353,60 @@ fn open_document_spreadsheets_are_refused_with_the_way_out() {
         "{msg}"
     );
 }
+
+#[test]
+fn workbook_title_rows_are_skipped_and_the_header_row_can_be_given() {
+    let f = write_xlsx(
+        "titled.xlsx",
+        &[(
+            "Plate",
+            vec![
+                vec![Some("Reporter assay, plate 7")],
+                vec![],
+                vec![Some("Exported"), Some("2026-11-02")],
+                vec![Some("dose"), Some("rep1"), Some("rep2")],
+                vec![Some("0.1"), Some("6.1"), Some("5.9")],
+                vec![Some("0.2"), Some("11.3"), None],
+            ],
+        )],
+    );
+    let (d, notes) = read_table_noted(f.path(), &ReadOptions::default()).unwrap();
+    assert_eq!(d.columns, vec!["dose", "rep1", "rep2"]);
+    assert_eq!(d.values[1], vec![6.1, 11.3]);
+    assert!(d.values[2][1].is_nan());
+    assert_eq!(notes.title_rows, vec![1, 3]);
+    assert_eq!(notes.header_row, 4);
+    let at = |n| ReadOptions {
+        header_row: Some(n),
+        ..ReadOptions::default()
+    };
+    let (d, _) = read_table_noted(f.path(), &at(4)).unwrap();
+    assert_eq!(d.columns, vec!["dose", "rep1", "rep2"]);
+    assert_eq!(
+        read_table(f.path(), &at(7)).unwrap_err(),
+        DataError::HeaderRowBeyondEnd {
+            path: f.path().into(),
+            row: 7,
+            last: 6
+        }
+    );
+    assert!(matches!(
+        read_table(f.path(), &at(2)).unwrap_err(),
+        DataError::HeaderRowNotARow { row: 2, .. }
+    ));
+}
+
+#[test]
+fn semicolon_file_with_decimal_commas_and_a_title() {
+    let f = TempFile::new(
+        "euro.csv",
+        "Messung 3;;\nDosis;Signal;Notiz\n0,5;1,25;\"zwei\nZeilen\"\n1;2,5;\n".as_bytes(),
+    );
+    let (d, notes) = read_table_noted(f.path(), &ReadOptions::default()).unwrap();
+    assert_eq!(d.columns, vec!["Dosis", "Signal", "Notiz"]);
+    assert_eq!(d.values[0], vec![0.5, 1.0]);
+    assert_eq!(d.values[1], vec![1.25, 2.5]);
+    assert_eq!(notes.decimal, DecimalMark::Comma);
+    assert_eq!(notes.separator.as_deref(), Some("semicolon"));
+    assert_eq!(notes.title_rows, vec![1]);
+}

@@ -1,6 +1,8 @@
-//! Reading tables into named numeric columns: delimited text (comma, tab or
-//! runs of whitespace) with a header, and spreadsheet workbooks (.xlsx, .xls,
-//! .xlsm, .xlsb; .ods is refused). Empty cells are *missing* (NaN in [`Dataset::values`]);
+//! Reading tables into named numeric columns: delimited text (comma,
+//! semicolon, tab, vertical bar or runs of whitespace; decimal points or
+//! commas) and spreadsheet workbooks (.xlsx, .xls, .xlsm, .xlsb; .ods is
+//! refused), each with a header row found below any title rows; and wide
+//! layouts (one column per replicate or sample) turned into long form. Empty cells are *missing* (NaN in [`Dataset::values`]);
 //! the model decides which columns matter and [`Dataset::select`] drops the
 //! incomplete rows. A column with cells that are not numbers is kept as text
 //! (group labels for `--by`); the error naming its first such cell is raised
@@ -11,14 +13,20 @@ mod error;
 #[cfg(test)]
 mod file_tests;
 mod limits;
+mod records;
 mod select;
+mod sniff;
 mod text;
+mod wide;
 mod workbook;
 
-pub use delimited::parse_delimited;
+pub use delimited::{parse_delimited, parse_delimited_with};
 pub use error::{CellKind, DataError, SheetCellError};
 pub use limits::{MAX_CELLS, MAX_INPUT_BYTES};
+pub use records::Separator;
+pub use sniff::DecimalMark;
 pub use text::TextColumn;
+pub use wide::{is_column_spec, match_columns, stack_columns, Stacked};
 pub use workbook::WORKBOOK_EXTENSIONS;
 
 /// A table of columns, column-major: numbers for every column, and the
@@ -75,11 +83,18 @@ impl Dataset {
     }
 }
 
-/// How to read an input: which sheet of a workbook, and the size limits.
+/// How to read an input: which sheet of a workbook, the layout when it is
+/// not to be guessed, and the size limits.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ReadOptions {
     /// Workbook sheet by name or 1-based index; `None` = the first sheet. Ignored for text files.
     pub sheet: Option<String>,
+    /// Cell delimiter of text files; `None` = guessed.
+    pub delimiter: Option<Separator>,
+    /// Decimal mark of text files; `None` = guessed (a comma only in `;`-separated files).
+    pub decimal: Option<DecimalMark>,
+    /// Line (text) or sheet row (workbook) of the header, 1-based; `None` = found.
+    pub header_row: Option<usize>,
     /// Largest input accepted, in bytes.
     pub max_bytes: u64,
     /// Largest number of cells (rows × columns) accepted.
@@ -90,20 +105,41 @@ impl Default for ReadOptions {
     fn default() -> Self {
         ReadOptions {
             sheet: None,
+            delimiter: None,
+            decimal: None,
+            header_row: None,
             max_bytes: MAX_INPUT_BYTES,
             max_cells: MAX_CELLS,
         }
     }
 }
 
+/// How a table was read: what `--verbose` reports about its layout.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct ReadNotes {
+    /// Lines (or sheet rows) above the header that were skipped as titles.
+    pub title_rows: Vec<usize>,
+    /// Line (or sheet row) of the header.
+    pub header_row: usize,
+    /// The cell separator, in words (text files only).
+    pub separator: Option<String>,
+    /// The decimal mark of number cells.
+    pub decimal: DecimalMark,
+}
+
 /// Reads a table from `path`: `-` is standard input (delimited text); a
 /// workbook extension (see [`WORKBOOK_EXTENSIONS`]) is read as a workbook;
 /// anything else as delimited text.
 pub fn read_table(path: &str, opts: &ReadOptions) -> Result<Dataset, DataError> {
+    read_table_noted(path, opts).map(|(d, _)| d)
+}
+
+/// As [`read_table`], also saying how the table was laid out.
+pub fn read_table_noted(path: &str, opts: &ReadOptions) -> Result<(Dataset, ReadNotes), DataError> {
     if path == "-" {
         let stdin = std::io::stdin();
         let text = limits::read_stream(stdin.lock(), "standard input", opts.max_bytes)?;
-        return delimited::parse_delimited_limited(&text, "standard input", opts.max_cells);
+        return delimited::parse_delimited_with(&text, "standard input", opts);
     }
     limits::check_file(path, opts.max_bytes)?;
     if workbook::is_ods_path(path) {
@@ -120,5 +156,39 @@ pub fn read_table(path: &str, opts: &ReadOptions) -> Result<Dataset, DataError> 
         });
     }
     let text = limits::read_file_text(path, opts.max_bytes)?;
-    delimited::parse_delimited_limited(&text, path, opts.max_cells)
+    delimited::parse_delimited_with(&text, path, opts)
+}
+
+/// Reads a `--delimiter` value: one character, or `tab`, `space` (runs of
+/// whitespace), `comma`, `semicolon`, `bar`.
+pub fn parse_separator(s: &str) -> Result<Separator, String> {
+    let named = match s {
+        "tab" | "\\t" | "\t" => Some(Separator::Byte(b'\t')),
+        "space" | "whitespace" | " " => Some(Separator::Whitespace),
+        "comma" => Some(Separator::Byte(b',')),
+        "semicolon" => Some(Separator::Byte(b';')),
+        "bar" | "pipe" => Some(Separator::Byte(b'|')),
+        _ => None,
+    };
+    if let Some(sep) = named {
+        return Ok(sep);
+    }
+    let mut chars = s.chars();
+    match (chars.next(), chars.next()) {
+        (Some(c), None) if c.is_ascii() && c != '"' && c != '\n' && c != '\r' => {
+            Ok(Separator::Byte(c as u8))
+        }
+        _ => Err(format!(
+            "'{s}' is not a delimiter: give one ASCII character such as ';' or '|', or tab, space, comma, semicolon, bar"
+        )),
+    }
+}
+
+/// Reads a `--decimal` value: `.` or `,`.
+pub fn parse_decimal(s: &str) -> Result<DecimalMark, String> {
+    match s {
+        "." | "point" => Ok(DecimalMark::Point),
+        "," | "comma" => Ok(DecimalMark::Comma),
+        _ => Err(format!("'{s}' is not a decimal mark: give . or ,")),
+    }
 }

@@ -1,11 +1,13 @@
 //! Spreadsheet workbooks (.xlsx, .xlsm, .xlsb, .xls) through the
-//! `calamine` crate: the first non-empty row of the chosen sheet is the
-//! header; empty cells are missing (NaN); a column with cells that are not
+//! `calamine` crate: the header is the first row of non-empty names followed
+//! by a row holding a number (rows above it are titles), or the row given by
+//! `--header-row`; empty cells are missing (NaN); a column with cells that are not
 //! numbers is also kept as text, and refused only when a model uses it.
 
 use super::error::{CellKind, SheetCellError};
+use super::sniff::{find_header, Class, SNIFF_ROWS};
 use super::text::TextBuilder;
-use super::{DataError, Dataset, ReadOptions};
+use super::{DataError, Dataset, ReadNotes, ReadOptions};
 use calamine::{open_workbook_auto, Cell, Data, DataRef, Range, Reader, Sheets};
 
 /// File extensions read as workbooks (compared without regard to case).
@@ -30,7 +32,10 @@ pub(crate) fn is_workbook_path(path: &str) -> bool {
 }
 
 /// Reads one sheet (by name, or 1-based number; default the first) of a workbook.
-pub(crate) fn read_workbook(path: &str, opts: &ReadOptions) -> Result<Dataset, DataError> {
+pub(crate) fn read_workbook(
+    path: &str,
+    opts: &ReadOptions,
+) -> Result<(Dataset, ReadNotes), DataError> {
     let werr = |reason: String| DataError::Workbook {
         path: path.to_string(),
         reason,
@@ -91,7 +96,61 @@ pub(crate) fn read_workbook(path: &str, opts: &ReadOptions) -> Result<Dataset, D
         .map(|(i, r)| (first_row + i + 1, r))
         .filter(|(_, r)| !r.iter().all(is_blank))
         .collect();
-    table_from_rows(path, &sheet, &rows)
+    if rows.is_empty() {
+        return Err(DataError::EmptySheet {
+            path: path.to_string(),
+            sheet,
+        });
+    }
+    let k = match opts.header_row {
+        Some(n) => match rows.iter().position(|(r, _)| *r == n) {
+            Some(k) => k,
+            None => {
+                let last = first_row + height;
+                return Err(if n == 0 || n > last {
+                    DataError::HeaderRowBeyondEnd {
+                        path: path.to_string(),
+                        row: n,
+                        last,
+                    }
+                } else {
+                    DataError::HeaderRowNotARow {
+                        path: path.to_string(),
+                        row: n,
+                    }
+                });
+            }
+        },
+        None => {
+            let classes: Vec<Vec<Class>> = rows
+                .iter()
+                .take(SNIFF_ROWS)
+                .map(|(_, r)| row_classes(r))
+                .collect();
+            find_header(&classes, false).unwrap_or(0)
+        }
+    };
+    let data = table_from_rows(path, &sheet, &rows[k..])?;
+    let notes = ReadNotes {
+        title_rows: rows[..k].iter().map(|(r, _)| *r).collect(),
+        header_row: rows[k].0,
+        separator: None,
+        decimal: Default::default(),
+    };
+    Ok((data, notes))
+}
+
+/// What each cell of a sheet row holds, up to its last non-empty cell.
+fn row_classes(row: &[Data]) -> Vec<Class> {
+    let end = row.iter().rposition(|c| !is_blank(c)).map_or(0, |j| j + 1);
+    row[..end]
+        .iter()
+        .map(|c| match c {
+            c if is_blank(c) => Class::Empty,
+            Data::Float(_) | Data::Int(_) => Class::Number,
+            _ => Class::Text,
+        })
+        .collect()
 }
 
 /// The sheet's used range from its non-empty cells, read one at a time;

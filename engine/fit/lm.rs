@@ -73,6 +73,9 @@ pub enum StopReason {
     MaxEvaluations,
     /// Trust region collapsed against points where the model is not finite.
     Stalled,
+    /// The residuals are finite but their sum of squares overflows (beyond
+    /// 1.8e308): no step can be judged there, so no minimum is claimed.
+    Overflow,
 }
 
 impl StopReason {
@@ -98,6 +101,7 @@ impl StopReason {
             StopReason::NonFiniteStart => "non_finite_start",
             StopReason::MaxEvaluations => "max_evaluations",
             StopReason::Stalled => "stalled",
+            StopReason::Overflow => "overflow",
         }
     }
 
@@ -114,6 +118,7 @@ impl StopReason {
             StopReason::NonFiniteStart => "model not finite at the starting values",
             StopReason::MaxEvaluations => "evaluation budget used up",
             StopReason::Stalled => "stalled against points where the model is not finite",
+            StopReason::Overflow => "the sum of squares overflows at the end point",
         }
     }
 }
@@ -550,28 +555,25 @@ pub fn levenberg_marquardt(problem: &dyn Residuals, start: &[f64], opts: &LmOpti
     if stop.is_converged() && (fnorm == 0.0 || fnorm <= 1e-13 * scale) {
         stop = StopReason::ZeroResidual;
     }
+    // ‖r‖ may be finite while Σr² is not (residuals near 1e160 and beyond):
+    // the tolerance tests compare nothing there (issue 10).
+    if stop.is_converged() && !fvec[..m_obs].iter().map(|r| r * r).sum::<f64>().is_finite() {
+        stop = StopReason::Overflow;
+    }
     finish(x, &fvec, iter, stop, &c, polished)
 }
 
 /// The minimum-norm Gauss–Newton step −J⁺r from the SVD of J, dropping
 /// singular values below max(m, n)·ε·σ_max (column-scaled for stability).
+/// `None` when the decomposition fails ([`super::svd::scaled_svd`]): polishing
+/// then stops, the point reached so far stands.
 fn gauss_newton_step(j: &DMatrix<f64>, r: &[f64]) -> Option<Vec<f64>> {
     let (m, n) = j.shape();
-    let mut scale = vec![1.0; n];
-    let mut js = j.clone();
-    for k in 0..n {
-        let s = j.column(k).norm();
-        if s > 0.0 && s.is_finite() {
-            scale[k] = s;
-            js.column_mut(k).scale_mut(1.0 / s);
-        }
-    }
-    let svd = nalgebra::SVD::try_new(js, true, true, f64::EPSILON, 500)?;
+    let svd = super::svd::scaled_svd(j, 0, true, 500)?;
     let u = svd.u.as_ref()?;
-    let vt = svd.v_t.as_ref()?;
-    let sv = &svd.singular_values;
-    let smax = sv.iter().cloned().fold(0.0, f64::max);
-    let cut = (m.max(n) as f64) * f64::EPSILON * smax;
+    let vt = &svd.v_t;
+    let sv = &svd.singular;
+    let cut = (m.max(n) as f64) * f64::EPSILON * svd.max();
     let rv = DVector::from_column_slice(r);
     let utr = u.transpose() * rv;
     let mut z: DVector<f64> = DVector::zeros(n);
@@ -583,7 +585,8 @@ fn gauss_newton_step(j: &DMatrix<f64>, r: &[f64]) -> Option<Vec<f64>> {
             }
         }
     }
-    Some((0..n).map(|k| -z[k] / scale[k]).collect())
+    let step: Vec<f64> = (0..n).map(|k| -z[k] / svd.scale[k]).collect();
+    step.iter().all(|v| v.is_finite()).then_some(step)
 }
 
 #[cfg(test)]

@@ -5,6 +5,7 @@ pub mod domain;
 pub mod lm;
 pub mod problem;
 pub mod stats;
+pub mod svd;
 pub mod tdist;
 pub mod trust;
 

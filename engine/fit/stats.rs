@@ -24,6 +24,52 @@ pub struct ParamEstimate {
     /// Approximate 95% interval (estimate ± t(0.975, dof)·se).
     pub ci_low: f64,
     pub ci_high: f64,
+    /// Whether the data determine this parameter ([`identifiability`]);
+    /// `None` when the statistics are undefined (no degrees of freedom,
+    /// non-finite values).
+    pub identifiable: Option<bool>,
+    /// Why not, as a stable code: `singular_direction` or `relative_se`.
+    pub unidentified_reason: Option<&'static str>,
+}
+
+/// Standard error beyond this multiple of |estimate| marks a parameter as not
+/// identifiable: its 95% interval then spans more than ±2000 times the
+/// estimate, so the data fix neither its sign nor its order of magnitude
+/// (our threshold; a flat valley along the parameter, e.g. a rate whose
+/// Jacobian column has vanished under the noise).
+pub const RELATIVE_SE_LIMIT: f64 = 1e3;
+
+/// Whether parameter estimate `est` with standard error `se` is determined by
+/// the data, and if not why. Two tests: the parameter loads on a direction
+/// whose singular value of the column-scaled Jacobian is at or below
+/// max(n, p)·ε·σ_max (numerical rank, Golub & Van Loan 1996, §5.5), or
+/// se > [`RELATIVE_SE_LIMIT`]·|est| (linearised standard error, Bates & Watts
+/// 1988, §2.3). `None` when se is undefined for want of degrees of freedom or
+/// finite inputs.
+pub fn identifiability(
+    est: f64,
+    se: f64,
+    on_singular_direction: bool,
+) -> (Option<bool>, Option<&'static str>) {
+    if on_singular_direction {
+        return (Some(false), Some("singular_direction"));
+    }
+    if se.is_nan() || !est.is_finite() {
+        return (None, None);
+    }
+    if se.is_infinite() || se > RELATIVE_SE_LIMIT * est.abs() {
+        return (Some(false), Some("relative_se"));
+    }
+    (Some(true), None)
+}
+
+/// Plain words for an `unidentified_reason` code, as tables print them.
+pub fn unidentified_text(code: &str) -> &'static str {
+    match code {
+        "singular_direction" => "not identifiable: on a singular direction of the Jacobian",
+        "relative_se" => "not identifiable: std. error > 1000 x |estimate|",
+        _ => "not identifiable",
+    }
 }
 
 /// Everything a fit report states.
@@ -144,6 +190,8 @@ pub fn summarize(names: &[String], result: &LmResult) -> FitSummary {
             }
             None => f64::NAN,
         };
+        let on_singular = matches!(&cov_scaled, Some((_, _, singular)) if singular[i]);
+        let (identifiable, unidentified_reason) = identifiability(est, se, on_singular);
         let t_value = est / se;
         let p_value = if dof > 0 {
             t_two_sided_p(t_value, dof as f64)
@@ -158,6 +206,8 @@ pub fn summarize(names: &[String], result: &LmResult) -> FitSummary {
             p_value,
             ci_low: est - t0 * se,
             ci_high: est + t0 * se,
+            identifiable,
+            unidentified_reason,
         });
     }
     if let Some((c, _, singular)) = &cov_scaled {
@@ -203,6 +253,18 @@ pub fn summarize(names: &[String], result: &LmResult) -> FitSummary {
         .filter(|e| !e.ci_low.is_finite() || !e.ci_high.is_finite())
         .map(|e| e.name.as_str())
         .collect();
+    let unidentified: Vec<&str> = parameters
+        .iter()
+        .filter(|e| e.identifiable == Some(false) && e.unidentified_reason == Some("relative_se"))
+        .map(|e| e.name.as_str())
+        .collect();
+    if !unidentified.is_empty() {
+        warnings.push(format!(
+            "not identifiable from these data (standard error above 1000 times \
+             the estimate; the estimate is arbitrary along a flat valley): {}",
+            unidentified.join(", ")
+        ));
+    }
     if !bad_ci.is_empty() {
         warnings.push(format!(
             "confidence intervals overflow (standard errors near the largest number) for: {}",
@@ -242,21 +304,11 @@ struct ScaledInverse {
 fn scaled_inverse(j: &DMatrix<f64>) -> Option<ScaledInverse> {
     let (n, p) = j.shape();
     let rows = n.max(p);
-    let mut js = DMatrix::zeros(rows, p);
-    let mut scale = vec![1.0; p];
-    for k in 0..p {
-        let s = j.column(k).norm();
-        if s > 0.0 && s.is_finite() {
-            scale[k] = s;
-        }
-        for i in 0..n {
-            js[(i, k)] = j[(i, k)] / scale[k];
-        }
-    }
-    let svd = nalgebra::SVD::try_new(js, false, true, f64::EPSILON, 1000)?;
-    let vt = svd.v_t.as_ref()?;
-    let sv = &svd.singular_values;
-    let smax = sv.iter().cloned().fold(0.0, f64::max);
+    let svd = super::svd::scaled_svd(j, rows, false, 1000)?;
+    let scale = svd.scale.clone();
+    let vt = &svd.v_t;
+    let sv = &svd.singular;
+    let smax = svd.max();
     let smin = sv.iter().cloned().fold(f64::INFINITY, f64::min);
     let cut = rows as f64 * f64::EPSILON * smax;
     let mut cov = DMatrix::zeros(p, p);

@@ -9,6 +9,7 @@
 use super::scales::ParamScale;
 use crate::symbolic::algebra;
 use crate::symbolic::roles::RoleKind;
+use crate::symbolic::simplify;
 use crate::symbolic::{Expr, Model};
 
 /// A class of mutually exchangeable parameter blocks.
@@ -53,7 +54,7 @@ pub fn exchangeable(model: &Model, scales: &[ParamScale]) -> Vec<Exchange> {
     let sum = |ts: &[Expr]| {
         ts.iter()
             .cloned()
-            .reduce(algebra::add)
+            .reduce(simplify::add)
             .unwrap_or(Expr::Num(0.0))
     };
     let mut used = vec![false; comps.len()];
@@ -76,7 +77,7 @@ pub fn exchangeable(model: &Model, scales: &[ParamScale]) -> Vec<Exchange> {
                 Expr::Param(q) => pa.iter().position(|x| x == q).map(|k| Expr::Param(pb[k])),
                 _ => None,
             });
-            if algebra::is_zero(&algebra::sub(mapped, sum(&comps[j].1))) {
+            if algebra::is_zero(&simplify::sub(mapped, sum(&comps[j].1))) {
                 blocks.push(pb.clone());
                 used[j] = true;
             }

@@ -3,7 +3,9 @@
 //! and everything → the [`ReportInput`] of the HTML page.
 
 use super::fit_table::{format_number, FitContext, SIGNIFICANT};
-use super::html::{EstimateRow, MinimumRow, ReportInput, StartingValueRow, Table};
+use super::html::{
+    formula_with_response, EstimateRow, MinimumRow, ReportInput, StartingValueRow, Table,
+};
 use super::plot::{format_num, FitSheet, Panel};
 use crate::features::{DataFeatures, Direction, Segment, ViewReport, XAxis, YTransform};
 use crate::fit::problem::Problem;
@@ -55,12 +57,52 @@ fn straight_pieces(r: &ViewReport) -> Vec<&Segment> {
     out
 }
 
-/// One survey panel per view: the points, plateaus reached as horizontal
-/// lines, nearby intercepts and peaks as markers, straight pieces as segments.
-pub fn survey_panels(features: &DataFeatures, x: &str, y: &str) -> Vec<Panel> {
+/// Why the views against log x are left out, when they are: x has negative
+/// values (it is then likely a log already, and its log drops them), or at
+/// least half the points have x ≤ 0. One line for the page.
+pub fn log_x_omission(features: &DataFeatures, x: &str) -> Option<String> {
+    let lin = features.view(XAxis::Linear, YTransform::Identity)?;
+    let logx = features.view(XAxis::Log, YTransform::Identity)?;
+    let n: usize = lin.view.counts.iter().sum::<usize>().max(lin.view.points.len());
+    let negative: usize = lin
+        .view
+        .points
+        .iter()
+        .zip(&lin.view.counts)
+        .filter(|(p, _)| p.0 < 0.0)
+        .map(|(_, c)| *c)
+        .sum();
+    let dropped = logx.view.excluded.x_not_positive;
+    if negative > 0 {
+        Some(format!(
+            "The views against log {x} are left out: {negative} of {n} values of {x} are negative \
+             ({x} may already be on a log scale), and its log would drop {dropped} of {n} points."
+        ))
+    } else if n > 0 && 2 * dropped >= n {
+        Some(format!(
+            "The views against log {x} are left out: {dropped} of {n} values of {x} are zero and have no log."
+        ))
+    } else {
+        None
+    }
+}
+
+/// The views shown on the page: all of them, less those against log x when
+/// [`log_x_omission`] leaves them out.
+fn shown_views<'a>(features: &'a DataFeatures, x: &str) -> Vec<&'a ViewReport> {
+    let skip_log = log_x_omission(features, x).is_some();
     features
         .views
         .iter()
+        .filter(|r| !(skip_log && r.view.x_axis == XAxis::Log))
+        .collect()
+}
+
+/// One survey panel per view shown: the points, plateaus reached as horizontal
+/// lines, nearby intercepts and peaks as markers, straight pieces as segments.
+pub fn survey_panels(features: &DataFeatures, x: &str, y: &str) -> Vec<Panel> {
+    shown_views(features, x)
+        .into_iter()
         .map(|r| {
             let axis = r.view.x_axis;
             let f = &r.features;
@@ -151,7 +193,7 @@ fn direction(d: Direction) -> &'static str {
 pub fn features_table(features: &DataFeatures, x: &str, y: &str) -> Table {
     let n = |v: f64| format_num(v);
     let mut rows: Vec<Vec<String>> = Vec::new();
-    for r in &features.views {
+    for r in shown_views(features, x) {
         let view = view_title(r, x, y);
         let axis = r.view.x_axis;
         let f = &r.features;
@@ -240,6 +282,100 @@ pub fn features_table(features: &DataFeatures, x: &str, y: &str) -> Table {
     }
 }
 
+/// The feature kind a derivation names, for each kind of row in the features table.
+fn cited_word(feature: &str) -> Option<&'static str> {
+    match feature {
+        "low-end plateau" | "high-end plateau" => Some("plateau"),
+        "intercept" => Some("intercept"),
+        "straight segment, slope" => Some("segment"),
+        "peak" => Some("peak"),
+        "trough" => Some("trough"),
+        "period" => Some("period"),
+        _ => None,
+    }
+}
+
+/// The numbers written in a text (e.g. `≈ 24.300` or `1.5e-3`).
+fn numbers_in(text: &str) -> Vec<f64> {
+    text.split(|c: char| !(c.is_ascii_digit() || matches!(c, '.' | '-' | 'e' | 'E' | '+')))
+        .filter_map(|t| t.trim_matches(|c| c == '.' || c == 'e' || c == 'E').parse::<f64>().ok())
+        .filter(|v| v.is_finite())
+        .collect()
+}
+
+/// Rows of the features table the starts' derivations cite: the derivation
+/// names the row's kind (plateau, intercept, segment, peak, trough, period)
+/// and one of its numbers equals one of the row's to four significant digits.
+pub fn cited_rows(table: &Table, derivations: &[&str]) -> Vec<usize> {
+    let same = |a: f64, b: f64| (a - b).abs() <= 1e-3 * a.abs().max(b.abs()).max(1e-300);
+    table
+        .rows
+        .iter()
+        .enumerate()
+        .filter(|(_, row)| {
+            let Some(word) = row.get(1).and_then(|f| cited_word(f)) else {
+                return false;
+            };
+            // The value, and for peaks and troughs the place (`at x = …`).
+            let mut mine = numbers_in(row.get(2).map_or("", String::as_str));
+            if matches!(word, "peak" | "trough") {
+                mine.extend(numbers_in(row.get(3).map_or("", String::as_str)));
+            }
+            mine.retain(|v| *v != 0.0);
+            derivations.iter().any(|d| {
+                d.contains(word) && numbers_in(d).iter().any(|v| mine.iter().any(|m| same(*v, *m)))
+            })
+        })
+        .map(|(i, _)| i)
+        .collect()
+}
+
+/// Which features go up front and the line saying why: those the starts
+/// were read from; when none was, the shape of the response against x
+/// (direction, plateaus, intercept) with a line saying where the starts came from.
+pub fn features_up_front(
+    table: &Table,
+    starts: &[StartingValueRow],
+    x: &str,
+    y: &str,
+) -> (Vec<usize>, String) {
+    let derivations: Vec<&str> = starts.iter().map(|s| s.derivation.as_str()).collect();
+    let cited = cited_rows(table, &derivations);
+    if !cited.is_empty() {
+        let s = if cited.len() == 1 { "" } else { "s" };
+        return (
+            cited,
+            format!("The starting values were read from the feature{s} below; the other features found are folded away."),
+        );
+    }
+    let main = format!("{y} against {x}");
+    let shape: Vec<usize> = table
+        .rows
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| {
+            r.first() == Some(&main)
+                && r.get(1).is_some_and(|f| {
+                    f == "direction" || f.ends_with("plateau") || f == "intercept"
+                })
+        })
+        .map(|(i, _)| i)
+        .collect();
+    let given = !starts.is_empty()
+        && derivations
+            .iter()
+            .all(|d| d.contains("given on the command line"));
+    let why = if given {
+        "The starting values were given on the command line, so none was read from a feature"
+    } else {
+        "No starting value was read from a feature (see how each was found under Starting values)"
+    };
+    (
+        shape,
+        format!("{why}; the shape of {main} is shown, the other features found are folded away."),
+    )
+}
+
 /// `n` evenly spaced values from `lo` to `hi` (both included).
 fn grid(lo: f64, hi: f64, n: usize) -> Vec<f64> {
     if n < 2 || hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
@@ -308,6 +444,10 @@ pub fn estimate_rows(summary: &FitSummary) -> Vec<EstimateRow> {
             std_error: p.std_error.is_finite().then_some(p.std_error),
             interval: (p.ci_low.is_finite() && p.ci_high.is_finite())
                 .then_some((p.ci_low, p.ci_high)),
+            note: p
+                .unidentified_reason
+                .filter(|_| p.identifiable == Some(false))
+                .map(|c| crate::fit::stats::unidentified_text(c).to_string()),
         })
         .collect()
 }
@@ -383,6 +523,9 @@ pub fn report_input(parts: &ReportParts) -> ReportInput {
         &format!("Fit of {}", parts.context.model),
     );
     let panels = survey_panels(parts.features, &x_name, &parts.context.response);
+    let features = features_table(parts.features, &x_name, &parts.context.response);
+    let (features_shown, features_note) =
+        features_up_front(&features, &parts.starts, &x_name, &parts.context.response);
     let mut columns_used: Vec<(String, String)> = model
         .vars
         .iter()
@@ -402,19 +545,22 @@ pub fn report_input(parts: &ReportParts) -> ReportInput {
     ReportInput {
         title: parts.title.clone(),
         date: parts.date.clone(),
-        model: parts.context.model.clone(),
+        model: formula_with_response(&parts.context.model, &model.response_text()),
         data_file: parts.context.data.clone(),
         rows_read: parts.rows_read,
         rows_used: problem.y.len(),
         rows_skipped: parts.rows_read.saturating_sub(problem.y.len()),
         skipped_reasons,
         columns_used,
-        features: features_table(parts.features, &x_name, &parts.context.response),
+        features,
+        features_shown,
+        features_note,
         starting_values: parts.starts.clone(),
         minima: parts.minima.clone(),
         estimates: estimate_rows(parts.summary),
         fit_summary: fit_facts(parts.summary),
         survey_svg: survey_sheet_svg(&panels),
+        survey_note: log_x_omission(parts.features, &x_name).unwrap_or_default(),
         fit_svg: fit_sheet_svg(&sheet),
         warnings,
     }

@@ -39,8 +39,10 @@ pub struct BatchReportInput {
     pub parameters: Vec<String>,
     /// One row per group, in order of first appearance.
     pub groups: Vec<BatchGroupRow>,
-    /// The overlay chart as SVG (from `plot::overlay_svg`).
+    /// The overlay chart as SVG (from `plot::overlay_svg`); empty when left out.
     pub overlay_svg: String,
+    /// Why the overlay chart is left out (too many groups); empty when it is shown.
+    pub overlay_note: String,
     /// The grid of per-group panels as SVG (from `plot::group_grid_svg`); empty to omit.
     pub grid_svg: String,
     /// Caption of the grid (says when only some groups are drawn).
@@ -77,14 +79,18 @@ pub fn render_batch_report(input: &BatchReportInput) -> String {
     group_table(&mut h, input);
 
     section(&mut h, "All groups");
-    figure(
-        &mut h,
-        &input.overlay_svg,
-        &format!(
-            "Every group's data (markers) and fitted curve (line), one colour per value of {}.",
-            input.by
-        ),
-    );
+    if input.overlay_svg.is_empty() && !input.overlay_note.is_empty() {
+        let _ = writeln!(h, "<p class=\"note\">{}</p>", escape_html(&input.overlay_note));
+    } else {
+        figure(
+            &mut h,
+            &input.overlay_svg,
+            &format!(
+                "Every group's data (markers) and fitted curve (line), one colour and marker per value of {}.",
+                input.by
+            ),
+        );
+    }
 
     section(&mut h, "Each group");
     if input.grid_svg.is_empty() {
@@ -221,6 +227,7 @@ mod tests {
                 },
             ],
             overlay_svg: overlay_svg(&overlay),
+            overlay_note: String::new(),
             grid_svg: group_grid_svg(&panels),
             grid_caption: "Each group.".into(),
             warnings: vec!["skipped 1 row with an empty 'well' cell".into()],

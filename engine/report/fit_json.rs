@@ -14,6 +14,10 @@ pub struct ParamJson<'a> {
     pub t_value: Option<f64>,
     pub ci_low: Option<f64>,
     pub ci_high: Option<f64>,
+    /// Whether the data determine the parameter (`null`: undefined).
+    pub identifiable: Option<bool>,
+    /// Why not: `singular_direction` or `relative_se` (`null` otherwise).
+    pub unidentified_reason: Option<&'a str>,
 }
 
 /// The whole JSON document (struct order = output order).
@@ -70,6 +74,8 @@ pub fn fit_document<'a>(summary: &'a FitSummary, ctx: &'a FitContext) -> FitJson
                 t_value: finite(p.t_value),
                 ci_low: finite(p.ci_low),
                 ci_high: finite(p.ci_high),
+                identifiable: p.identifiable,
+                unidentified_reason: p.unidentified_reason,
             })
             .collect(),
         ssr: finite(summary.ssr),

@@ -1,7 +1,7 @@
 //! The fit as an aligned plain-text table: one row per parameter (estimate,
 //! standard error, t value, 95% interval), then the fit's overall figures and warnings.
 
-use crate::fit::stats::FitSummary;
+use crate::fit::stats::{unidentified_text, FitSummary};
 
 /// What the fit was of, for the heading of a report.
 #[derive(Debug, Clone, Default)]
@@ -74,7 +74,13 @@ pub fn fit_table(summary: &FitSummary, ctx: &FitContext) -> String {
     );
     out += &format!("response   {}\n\n", ctx.response);
 
-    let header = [
+    // A parameter the data do not determine is marked beside its row (the
+    // column appears only when one is).
+    let flagged = summary
+        .parameters
+        .iter()
+        .any(|p| p.identifiable == Some(false));
+    let mut header = vec![
         "parameter",
         "estimate",
         "std. error",
@@ -82,38 +88,52 @@ pub fn fit_table(summary: &FitSummary, ctx: &FitContext) -> String {
         "95% low",
         "95% high",
     ];
-    let rows: Vec<[String; 6]> = summary
+    if flagged {
+        header.push("note");
+    }
+    let rows: Vec<Vec<String>> = summary
         .parameters
         .iter()
         .map(|p| {
-            [
+            let mut r = vec![
                 p.name.clone(),
                 format_number(p.estimate, SIGNIFICANT),
                 format_number(p.std_error, SIGNIFICANT),
                 format_number(p.t_value, T_SIGNIFICANT),
                 format_number(p.ci_low, SIGNIFICANT),
                 format_number(p.ci_high, SIGNIFICANT),
-            ]
+            ];
+            if flagged {
+                r.push(
+                    p.unidentified_reason
+                        .filter(|_| p.identifiable == Some(false))
+                        .map(unidentified_text)
+                        .unwrap_or("")
+                        .to_string(),
+                );
+            }
+            r
         })
         .collect();
-    let mut widths = header.map(|h| h.chars().count());
+    let mut widths: Vec<usize> = header.iter().map(|h| h.chars().count()).collect();
     for r in &rows {
         for (w, c) in widths.iter_mut().zip(r.iter()) {
             *w = (*w).max(c.chars().count());
         }
     }
+    let last = header.len() - 1;
     let line = |cells: &[String]| -> String {
         let mut s = String::new();
         for (j, (c, w)) in cells.iter().zip(widths.iter()).enumerate() {
-            if j == 0 {
-                s += &format!("{:<w$}", c, w = *w);
+            if j == 0 || (flagged && j == last) {
+                s += &format!("{}{:<w$}", if j == 0 { "" } else { "  " }, c, w = *w);
             } else {
                 s += &format!("  {:>w$}", c, w = *w);
             }
         }
         s.trim_end().to_string() + "\n"
     };
-    out += &line(&header.map(String::from));
+    out += &line(&header.iter().map(|h| h.to_string()).collect::<Vec<_>>());
     for r in &rows {
         out += &line(r);
     }
@@ -176,6 +196,8 @@ pub(crate) mod tests {
                     ci_low: 12.32,
                     ci_high: 12.37,
                     p_value: 0.0,
+                    identifiable: Some(true),
+                    unidentified_reason: None,
                 },
                 ParamEstimate {
                     name: "rate_k".into(),
@@ -185,6 +207,8 @@ pub(crate) mod tests {
                     ci_low: f64::NEG_INFINITY,
                     ci_high: f64::INFINITY,
                     p_value: f64::NAN,
+                    identifiable: Some(false),
+                    unidentified_reason: Some("singular_direction"),
                 },
             ],
             ssr: 0.5,

@@ -55,14 +55,22 @@ pub fn csv_line<S: AsRef<str>>(cells: &[S]) -> String {
 }
 
 /// Header of the per-parameter CSV of a fit.
-pub const FIT_CSV_HEADER: [&str; 6] = [
+pub const FIT_CSV_HEADER: [&str; 8] = [
     "name",
     "estimate",
     "std_error",
     "t_value",
     "ci_low",
     "ci_high",
+    "identifiable",
+    "unidentified_reason",
 ];
+
+/// `true`, `false`, or empty when undefined: a parameter's identifiability as
+/// CSV and batch tables print it.
+pub fn identifiable_cell(v: Option<bool>) -> String {
+    v.map(|b| b.to_string()).unwrap_or_default()
+}
 
 /// The fit as CSV: a header, then one row per parameter.
 pub fn fit_csv(summary: &FitSummary) -> String {
@@ -75,6 +83,8 @@ pub fn fit_csv(summary: &FitSummary) -> String {
             csv_number(p.t_value),
             csv_number(p.ci_low),
             csv_number(p.ci_high),
+            identifiable_cell(p.identifiable),
+            p.unidentified_reason.unwrap_or("").to_string(),
         ]);
     }
     out
@@ -141,9 +151,12 @@ mod tests {
     fn csv_has_one_row_per_parameter_and_empty_non_finite_cells() {
         let csv = fit_csv(&sample_summary());
         let lines: Vec<&str> = csv.lines().collect();
-        assert_eq!(lines[0], "name,estimate,std_error,t_value,ci_low,ci_high");
-        assert_eq!(lines[1], "a,12.3456789,0.0123456789,1000,12.32,12.37");
-        assert_eq!(lines[2], "rate_k,-3.2e-9,,,,");
+        assert_eq!(
+            lines[0],
+            "name,estimate,std_error,t_value,ci_low,ci_high,identifiable,unidentified_reason"
+        );
+        assert_eq!(lines[1], "a,12.3456789,0.0123456789,1000,12.32,12.37,true,");
+        assert_eq!(lines[2], "rate_k,-3.2e-9,,,,,false,singular_direction");
         assert_eq!(lines.len(), 3);
         assert_eq!(
             csv_line(&["a,b", "say \"hi\"", "3"]),

@@ -49,6 +49,9 @@ pub struct EstimateRow {
     pub std_error: Option<f64>,
     /// 95% interval `(lower, upper)`, when it could be computed.
     pub interval: Option<(f64, f64)>,
+    /// Shown beside the estimate when the data do not determine it
+    /// (e.g. "not identifiable: std. error > 1000 x |estimate|").
+    pub note: Option<String>,
 }
 
 /// Everything the HTML report shows; plain values so any caller can fill it.
@@ -74,6 +77,11 @@ pub struct ReportInput {
     pub columns_used: Vec<(String, String)>,
     /// Features found in the data (plateaus, intercepts, straight pieces, peaks).
     pub features: Table,
+    /// Rows of `features` shown up front (those the starts were read from);
+    /// the rest are folded away under a summary line.
+    pub features_shown: Vec<usize>,
+    /// One line above the features saying what is shown up front and why.
+    pub features_note: String,
     /// Starting values with their derivations.
     pub starting_values: Vec<StartingValueRow>,
     /// Distinct minima of the multistart search, best first.
@@ -84,6 +92,8 @@ pub struct ReportInput {
     pub fit_summary: Vec<(String, String)>,
     /// Survey sheet as an SVG string (from `plot::survey_sheet_svg`); empty to omit.
     pub survey_svg: String,
+    /// One line over the survey, e.g. why the views against log x are left out.
+    pub survey_note: String,
     /// Fit sheet as an SVG string (from `plot::fit_sheet_svg`); empty to omit.
     pub fit_svg: String,
     /// Warnings to show the reader.
@@ -167,8 +177,15 @@ dl.facts { display: grid; grid-template-columns: max-content 1fr; gap: .25rem 1.
 dl.facts dt { color: var(--muted); }
 dl.facts dd { margin: 0; }
 .empty { color: var(--muted); font-style: italic; }
-figure { margin: .5rem 0 1rem; width: min(1400px, calc(100vw - 3rem)); position: relative; left: 50%; transform: translateX(-50%); }
-figure svg { display: block; width: 100%; height: auto; border: 1px solid var(--rule); }
+figure { margin: .5rem 0 1rem; max-width: 100%; }
+figure svg { display: block; width: 100%; max-width: 100%; height: auto; border: 1px solid var(--rule); }
+p.note { color: var(--muted); margin: .3rem 0 .6rem; }
+details { margin: .4rem 0 1rem; }
+details > summary { cursor: pointer; color: var(--accent); }
+table.groups tbody tr.failed td { background: #fdecea; }
+table.groups tbody tr.failed td:nth-child(2) { color: #b3261e; font-weight: 700; }
+table.groups tbody tr.not-converged td { background: #fff6e0; }
+table.groups tbody tr.not-converged td:nth-child(2) { color: #8a5a00; font-weight: 700; }
 figcaption { color: var(--muted); font-size: .9rem; margin-top: .3rem; }
 ul.warnings li { margin: .2rem 0; }
 .caution { border: 2px solid var(--warn); background: #fff6ef; padding: .8rem 1rem; border-radius: 4px; font-weight: 500; }
@@ -177,7 +194,6 @@ ul.warnings li { margin: .2rem 0; }
   main { max-width: none; padding: 0; }
   h2 { break-after: avoid; }
   table, figure, .caution { break-inside: avoid; }
-  figure { width: 100%; left: 0; transform: none; }
   tbody tr:nth-child(even) td { background: none; }
 }
 "#;
@@ -222,7 +238,7 @@ pub fn render_report(input: &ReportInput) -> String {
     data_summary(&mut h, input);
 
     section(&mut h, "Features found");
-    text_table(&mut h, &input.features, "No features were found.");
+    features(&mut h, input);
 
     section(&mut h, "Starting values");
     starting_values(&mut h, &input.starting_values);
@@ -235,10 +251,11 @@ pub fn render_report(input: &ReportInput) -> String {
     facts(&mut h, &input.fit_summary);
 
     section(&mut h, "Survey of the data");
+    note(&mut h, &input.survey_note);
     figure(
         &mut h,
         &input.survey_svg,
-        "The data in six views (y, 1/y and log y against x and against log x) with the features found drawn on each.",
+        "The data in up to six views (y, 1/y and log y against x, and against log x when x allows it) with the features found drawn on each.",
     );
 
     section(&mut h, "Fit");
@@ -317,31 +334,80 @@ fn data_summary(h: &mut String, input: &ReportInput) {
     }
 }
 
+/// The model as a formula with its response, `response = right side`; a
+/// formula already written with `=` is kept as it is.
+pub fn formula_with_response(text: &str, response: &str) -> String {
+    if text.contains('=') || response.is_empty() {
+        text.to_string()
+    } else {
+        format!("{response} = {text}")
+    }
+}
+
+/// A one-line note in muted text; nothing when empty.
+pub(crate) fn note(h: &mut String, text: &str) {
+    if !text.is_empty() {
+        let _ = writeln!(h, "<p class=\"note\">{}</p>", escape_html(text));
+    }
+}
+
+/// The features: the rows the starts were read from up front, every other
+/// row folded away in a `<details>` element under a one-line summary.
+fn features(h: &mut String, input: &ReportInput) {
+    let table = &input.features;
+    if table.rows.is_empty() {
+        h.push_str("<p class=\"empty\">No features were found.</p>\n");
+        return;
+    }
+    note(h, &input.features_note);
+    let shown: Vec<&Vec<String>> = input
+        .features_shown
+        .iter()
+        .filter_map(|&i| table.rows.get(i))
+        .collect();
+    let rest: Vec<&Vec<String>> = table
+        .rows
+        .iter()
+        .enumerate()
+        .filter(|(i, _)| !input.features_shown.contains(i))
+        .map(|(_, r)| r)
+        .collect();
+    if !shown.is_empty() {
+        table_rows(h, &table.headers, &shown);
+    }
+    if !rest.is_empty() {
+        let what = if shown.is_empty() { "" } else { "other " };
+        let _ = writeln!(
+            h,
+            "<details class=\"features\">\n<summary>{} {what}feature{} found in the views</summary>",
+            rest.len(),
+            if rest.len() == 1 { "" } else { "s" }
+        );
+        table_rows(h, &table.headers, &rest);
+        h.push_str("</details>\n");
+    }
+}
+
 /// True when a cell reads as a number, so it is right-aligned.
 fn numeric(cell: &str) -> bool {
     let t = cell.trim();
     !t.is_empty() && t.parse::<f64>().is_ok()
 }
 
-fn text_table(h: &mut String, table: &Table, empty: &str) {
-    if table.rows.is_empty() {
-        let _ = writeln!(h, "<p class=\"empty\">{}</p>", escape_html(empty));
-        return;
-    }
-    let width = table
-        .rows
+fn table_rows(h: &mut String, headers: &[String], rows: &[&Vec<String>]) {
+    let width = rows
         .iter()
-        .map(Vec::len)
-        .chain(std::iter::once(table.headers.len()))
+        .map(|r| r.len())
+        .chain(std::iter::once(headers.len()))
         .max()
         .unwrap_or(0);
     h.push_str("<table>\n<thead><tr>");
     for i in 0..width {
-        let head = table.headers.get(i).map(String::as_str).unwrap_or("");
+        let head = headers.get(i).map(String::as_str).unwrap_or("");
         let _ = write!(h, "<th>{}</th>", escape_html(head));
     }
     h.push_str("</tr></thead>\n<tbody>\n");
-    for row in &table.rows {
+    for row in rows {
         h.push_str("<tr>");
         for i in 0..width {
             let cell = row.get(i).map(String::as_str).unwrap_or("");
@@ -407,11 +473,15 @@ fn estimates(h: &mut String, rows: &[EstimateRow]) {
         let ci = r.interval.map_or("—".to_string(), |(lo, hi)| {
             format!("{} to {}", num(lo, 6), num(hi, 6))
         });
+        let note = r.note.as_ref().map_or(String::new(), |n| {
+            format!(" <em class=\"unidentified\">({})</em>", escape_html(n))
+        });
         let _ = writeln!(
             h,
-            "<tr><td><code>{}</code></td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            "<tr><td><code>{}</code></td><td class=\"num\">{}{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
             escape_html(&r.parameter),
             num(r.estimate, 6),
+            note,
             se,
             ci
         );
@@ -492,6 +562,8 @@ mod tests {
                     vec!["y against x".into(), "initial slope".into(), "1.78".into()],
                 ],
             },
+            features_shown: vec![0],
+            features_note: "The starting values were read from this feature.".into(),
             starting_values: vec![
                 StartingValueRow {
                     parameter: "a".into(),
@@ -527,16 +599,19 @@ mod tests {
                     estimate: 4.98123,
                     std_error: Some(0.0312),
                     interval: Some((4.917, 5.046)),
+                    note: None,
                 },
                 EstimateRow {
                     parameter: "k".into(),
                     estimate: 2.0211,
                     std_error: None,
                     interval: None,
+                    note: Some("not identifiable: on a singular direction of the Jacobian".into()),
                 },
             ],
             fit_summary: vec![("residual sum of squares".into(), "0.0412".into())],
             survey_svg: survey_sheet_svg(&demo::saturation_survey()),
+            survey_note: String::new(),
             fit_svg: fit_sheet_svg(&demo::saturation_fit()),
             warnings: vec!["k's standard error could not be computed & was left out.".into()],
         }
@@ -558,6 +633,18 @@ mod tests {
         assert!(html.contains("92.0%"), "share of starts as a percentage");
         assert!(html.contains("4.98123") && html.contains("0.03120"));
         assert!(html.contains("4.91700 to 5.04600"));
+        // The feature used up front, the other folded away.
+        let feats = &html[html.find("<h2>Features found").unwrap()..html.find("<h2>Starting").unwrap()];
+        let fold = feats.find("<details").expect("details element");
+        assert!(feats[..fold].contains("<td>plateau</td>"), "{feats}");
+        assert!(feats[fold..].contains("<summary>1 other feature found in the views</summary>"));
+        assert!(feats[fold..].contains("<td>initial slope</td>"), "{feats}");
+    }
+
+    #[test]
+    fn formula_gets_its_response() {
+        assert_eq!(formula_with_response("a*exp(-k*t)", "y"), "y = a*exp(-k*t)");
+        assert_eq!(formula_with_response("log(y) = b0 + b1*x", "log(y)"), "log(y) = b0 + b1*x");
     }
 
     #[test]
@@ -592,6 +679,7 @@ mod tests {
             estimate: f64::NAN,
             std_error: Some(f64::INFINITY),
             interval: None,
+            note: None,
         }];
         let html = render_report(&input);
         assert!(!html.contains("<script") && !html.contains("<svg"));

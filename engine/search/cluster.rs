@@ -4,6 +4,7 @@
 //! run off to the same infinity count as agreeing). Also the diagnostics of a
 //! minimum: condition number and parameters at a boundary or at infinity.
 
+use crate::fit::svd::safe_column_norm;
 use super::scale::ParamScale;
 use nalgebra::DMatrix;
 
@@ -107,12 +108,26 @@ pub fn same_minimum(a: &EndPoint, b: &EndPoint, scales: &[ParamScale], tol: &Tol
             || scaled_gap_except(a.params, b.params, scales, a.divergent) <= tol.param_rtol)
 }
 
-/// Condition number σmax/σmin of `j` (∞ when rank-deficient, NaN when not finite).
+/// Condition number σmax/σmin of `j` (∞ when rank-deficient, NaN when not
+/// finite or when the decomposition fails). The matrix is divided by its
+/// largest magnitude first, which leaves the ratio unchanged and keeps the
+/// decomposition from overflowing; the unordered SVD cannot panic on NaN.
 pub fn condition_number(j: &DMatrix<f64>) -> f64 {
     if j.ncols() == 0 || j.nrows() == 0 || j.iter().any(|v| !v.is_finite()) {
         return f64::NAN;
     }
-    let sv = j.clone().svd(false, false).singular_values;
+    let big = j.iter().fold(0.0f64, |b, v| b.max(v.abs()));
+    if big == 0.0 {
+        return f64::INFINITY;
+    }
+    let Some(svd) = nalgebra::SVD::try_new_unordered(j / big, false, false, f64::EPSILON, 1000)
+    else {
+        return f64::NAN;
+    };
+    let sv = svd.singular_values;
+    if sv.iter().any(|v| !v.is_finite()) {
+        return f64::NAN;
+    }
     let max = sv.iter().cloned().fold(0.0, f64::max);
     let min = sv.iter().cloned().fold(f64::INFINITY, f64::min);
     if j.nrows() < j.ncols() || min == 0.0 {
@@ -124,16 +139,19 @@ pub fn condition_number(j: &DMatrix<f64>) -> f64 {
 
 /// Condition number of `j` after scaling every column to unit length (Van der
 /// Sluis 1969: nearly the best diagonal scaling), so that it measures
-/// dependence among the columns, not their units. Zero columns count as singular.
+/// dependence among the columns, not their units. Zero columns count as
+/// singular; column norms are taken without overflow.
 pub fn scaled_condition(j: &DMatrix<f64>) -> f64 {
+    if j.ncols() == 0 || j.nrows() == 0 || j.iter().any(|v| !v.is_finite()) {
+        return f64::NAN;
+    }
     let mut s = j.clone();
     for mut c in s.column_iter_mut() {
-        let n = c.norm();
-        if n > 0.0 && n.is_finite() {
-            c /= n;
-        } else if n == 0.0 {
+        let n = safe_column_norm(c.as_slice());
+        if n == 0.0 {
             return f64::INFINITY;
         }
+        c /= n;
     }
     condition_number(&s)
 }
@@ -156,7 +174,7 @@ pub fn divergent_params(
     let unit = |i: usize| scales.get(i).map(|s| s.unit()).unwrap_or(1.0);
     let col = |i: usize| -> f64 {
         if i < jacobian.ncols() {
-            jacobian.column(i).norm() * unit(i)
+            safe_column_norm(jacobian.column(i).as_slice()) * unit(i)
         } else {
             f64::NAN
         }

@@ -1,151 +1,12 @@
 //! Small algebra shared by the structural analyses (linearity, transforms,
-//! limits, roles): tidy constructors that fold numbers and trivial identities,
-//! sum/product flattening, numeric identity testing, a one-unknown equation
-//! solver, and the text form used when analysis results are serialised.
+//! limits, roles): sum/product flattening, numeric identity testing, a
+//! one-unknown equation solver, and the text form used when analysis results
+//! are serialised. New expressions are built with the simplifying constructors
+//! of `simplify` (see there for which constructor to use when).
 
 use super::expr::{BinOp, Expr, Func};
+use super::simplify::{add, call, div, mul, neg, pow, sub};
 use serde::Serializer;
-
-/// `a + b`, folding numbers, zeros and a negated right side.
-pub fn add(a: Expr, b: Expr) -> Expr {
-    match (&a, &b) {
-        (Expr::Num(x), Expr::Num(y)) => Expr::Num(x + y),
-        (Expr::Num(x), _) if *x == 0.0 => b,
-        (_, Expr::Num(y)) if *y == 0.0 => a,
-        (_, Expr::Num(y)) if *y < 0.0 => Expr::sub(a, Expr::Num(-y)),
-        (_, Expr::Neg(nb)) => sub(a, (**nb).clone()),
-        (Expr::Neg(na), _) => sub(b, (**na).clone()),
-        _ => Expr::add(a, b),
-    }
-}
-
-/// `a - b`, folding numbers, zeros and a negated right side.
-pub fn sub(a: Expr, b: Expr) -> Expr {
-    match (&a, &b) {
-        (Expr::Num(x), Expr::Num(y)) => Expr::Num(x - y),
-        (_, Expr::Num(y)) if *y == 0.0 => a,
-        (Expr::Num(x), _) if *x == 0.0 => neg(b),
-        (_, Expr::Neg(nb)) => add(a, (**nb).clone()),
-        _ if a == b => Expr::Num(0.0),
-        _ => Expr::sub(a, b),
-    }
-}
-
-/// `-a`, folding numbers, double negation and a numeric factor.
-pub fn neg(a: Expr) -> Expr {
-    match a {
-        Expr::Num(x) => Expr::Num(-x),
-        Expr::Neg(x) => *x,
-        Expr::Bin(BinOp::Mul, l, r) => match *l {
-            Expr::Num(c) => mul(Expr::Num(-c), *r),
-            Expr::Neg(x) => mul(*x, *r),
-            l => Expr::neg(Expr::mul(l, *r)),
-        },
-        Expr::Bin(BinOp::Sub, l, r) => Expr::sub(*r, *l),
-        other => Expr::neg(other),
-    }
-}
-
-/// `a * b`, folding numbers, ones, zeros and signs; numbers go to the left.
-pub fn mul(a: Expr, b: Expr) -> Expr {
-    match (&a, &b) {
-        (Expr::Num(x), Expr::Num(y)) => Expr::Num(x * y),
-        (Expr::Num(x), _) | (_, Expr::Num(x)) if *x == 0.0 => Expr::Num(0.0),
-        (Expr::Num(x), _) if *x == 1.0 => b,
-        (_, Expr::Num(y)) if *y == 1.0 => a,
-        (Expr::Num(x), _) if *x == -1.0 => neg(b),
-        (_, Expr::Num(y)) if *y == -1.0 => neg(a),
-        (_, Expr::Num(_)) => mul(b, a),
-        (Expr::Neg(x), _) => neg(mul((**x).clone(), b)),
-        (_, Expr::Neg(y)) => neg(mul(a, (**y).clone())),
-        (Expr::Num(x), Expr::Bin(BinOp::Mul, l, r)) => match **l {
-            Expr::Num(y) => mul(Expr::Num(x * y), (**r).clone()),
-            _ => Expr::mul(a, b),
-        },
-        (_, Expr::Bin(BinOp::Div, l, r)) if matches!(**l, Expr::Num(v) if v == 1.0) => {
-            div(a, (**r).clone())
-        }
-        _ => Expr::mul(a, b),
-    }
-}
-
-/// `a / b`, folding numbers, ones, zeros and signs.
-pub fn div(a: Expr, b: Expr) -> Expr {
-    match (&a, &b) {
-        (Expr::Num(x), Expr::Num(y)) if *y != 0.0 => Expr::Num(x / y),
-        (_, Expr::Num(y)) if *y == 1.0 => a,
-        (_, Expr::Num(y)) if *y == -1.0 => neg(a),
-        (Expr::Num(x), _) if *x == 0.0 => Expr::Num(0.0),
-        (Expr::Neg(x), _) => neg(div((**x).clone(), b)),
-        (_, Expr::Neg(y)) => neg(div(a, (**y).clone())),
-        _ if a == b => Expr::Num(1.0),
-        _ => Expr::div(a, b),
-    }
-}
-
-/// `a ^ b`, folding numbers, `^0`, `^1` and nested numeric powers.
-pub fn pow(a: Expr, b: Expr) -> Expr {
-    match (&a, &b) {
-        (_, Expr::Num(y)) if *y == 0.0 => Expr::Num(1.0),
-        (_, Expr::Num(y)) if *y == 1.0 => a,
-        (Expr::Num(x), Expr::Num(y)) => {
-            let v = super::expr::pow(*x, *y);
-            if v.is_finite() {
-                Expr::Num(v)
-            } else {
-                Expr::pow(a, b)
-            }
-        }
-        (Expr::Bin(BinOp::Pow, base, e), Expr::Num(y)) => match **e {
-            Expr::Num(x) if (x * y).fract() == 0.0 && x.fract() == 0.0 => {
-                pow((**base).clone(), Expr::Num(x * y))
-            }
-            _ => Expr::pow(a, b),
-        },
-        _ => Expr::pow(a, b),
-    }
-}
-
-/// `f(a)`, folding numbers and `log(exp(u))` (exact for every real u);
-/// `exp(log(u))` is kept, since it is undefined for u ≤ 0 where `u` is not.
-pub fn call(f: Func, a: Expr) -> Expr {
-    if let Expr::Num(x) = a {
-        let v = f.apply(x);
-        if v.is_finite() {
-            return Expr::Num(v);
-        }
-    }
-    match (f, &a) {
-        (Func::Log, Expr::Call(Func::Exp, u)) => (**u).clone(),
-        _ => Expr::call(f, a),
-    }
-}
-
-/// Applies `op` through the tidy constructors.
-pub fn bin(op: BinOp, a: Expr, b: Expr) -> Expr {
-    match op {
-        BinOp::Add => add(a, b),
-        BinOp::Sub => sub(a, b),
-        BinOp::Mul => mul(a, b),
-        BinOp::Div => div(a, b),
-        BinOp::Pow => pow(a, b),
-    }
-}
-
-/// Rebuilds an expression bottom-up through the tidy constructors; then hands it
-/// to the shared simplifier so results improve when that grows.
-pub fn tidy(e: &Expr) -> Expr {
-    super::simplify::simplify(&tidy_local(e))
-}
-
-fn tidy_local(e: &Expr) -> Expr {
-    match e {
-        Expr::Num(_) | Expr::Var(_) | Expr::Param(_) => e.clone(),
-        Expr::Neg(a) => neg(tidy_local(a)),
-        Expr::Call(f, a) => call(*f, tidy_local(a)),
-        Expr::Bin(op, a, b) => bin(*op, tidy_local(a), tidy_local(b)),
-    }
-}
 
 /// The additive terms of `e`, signs pushed into the terms.
 pub fn sum_terms(e: &Expr) -> Vec<Expr> {
@@ -299,40 +160,7 @@ pub fn isolate(value: Expr, e: &Expr, p: usize, notes: &mut Vec<String>) -> Opti
             }
         }
         Expr::Call(f, a) => {
-            let inv = match f {
-                Func::Exp => call(Func::Log, value),
-                Func::Log => call(Func::Exp, value),
-                Func::Log10 => pow(Expr::Num(10.0), value),
-                Func::Sqrt => pow(value, Expr::Num(2.0)),
-                Func::Atan => call(Func::Tan, value),
-                Func::Tan => {
-                    notes.push("tan inverted on its principal branch".into());
-                    call(Func::Atan, value)
-                }
-                Func::Sin => {
-                    notes.push("sin inverted on its principal branch".into());
-                    call(Func::Asin, value)
-                }
-                Func::Cos => {
-                    notes.push("cos inverted on its principal branch".into());
-                    call(Func::Acos, value)
-                }
-                Func::Asin => call(Func::Sin, value),
-                Func::Acos => call(Func::Cos, value),
-                Func::Abs => {
-                    notes.push("abs inverted taking the positive value".into());
-                    value
-                }
-                Func::Tanh => {
-                    // atanh(v) = log((1 + v)/(1 − v)) / 2
-                    let r = div(
-                        add(Expr::Num(1.0), value.clone()),
-                        sub(Expr::Num(1.0), value),
-                    );
-                    mul(Expr::Num(0.5), call(Func::Log, r))
-                }
-                Func::Sinh | Func::Cosh => return None,
-            };
+            let inv = super::functions::inverse(*f, value, notes)?;
             isolate(inv, a, p, notes)
         }
         _ => None,
@@ -358,6 +186,8 @@ pub fn ser_exprs<S: Serializer>(es: &[Expr], s: S) -> Result<S::Ok, S::Error> {
 mod tests {
     use super::*;
 
+    use crate::symbolic::simplify::simplify;
+
     #[test]
     fn exp_of_log_is_not_folded_but_log_of_exp_is() {
         let x = Expr::Var(0);
@@ -372,10 +202,10 @@ mod tests {
     }
 
     #[test]
-    fn tidy_folds_trivia() {
-        assert_eq!(tidy(&p("1*a + 0")), Expr::Param(0));
-        assert_eq!(tidy(&p("a*(1-1)")), Expr::Num(0.0));
-        assert_eq!(tidy(&p("-(-a)")), Expr::Param(0));
+    fn simplify_folds_trivia() {
+        assert_eq!(simplify(&p("1*a + 0")), Expr::Param(0));
+        assert_eq!(simplify(&p("a*(1-1)")), Expr::Num(0.0));
+        assert_eq!(simplify(&p("-(-a)")), Expr::Param(0));
     }
 
     #[test]

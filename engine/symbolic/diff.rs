@@ -3,8 +3,10 @@
 //! Forward recursion over the tree with the textbook rules (sum, product,
 //! quotient, chain rule), each result built through the simplifier's smart
 //! constructors so that zeros vanish as they appear, then simplified once more.
+//! Each function's own derivative comes from the facts table (`functions`).
 
 use super::expr::{BinOp, Expr, Func};
+use super::functions::derivative;
 use super::simplify::{bin, call, neg, simplify};
 
 /// What a derivative is taken with respect to.
@@ -122,41 +124,7 @@ fn d(e: &Expr, w: Wrt) -> Expr {
             if is_zero(&du) {
                 return n(0.0);
             }
-            let times = |g: Expr| bin(BinOp::Mul, g, du.clone());
-            let sq = |x: Expr| bin(BinOp::Pow, x, n(2.0));
-            match f {
-                Func::Exp => times(e.clone()),
-                Func::Log => bin(BinOp::Div, du.clone(), u.clone()),
-                Func::Log10 => bin(
-                    BinOp::Div,
-                    du.clone(),
-                    bin(BinOp::Mul, n(std::f64::consts::LN_10), u.clone()),
-                ),
-                Func::Sqrt => bin(BinOp::Div, du.clone(), bin(BinOp::Mul, n(2.0), e.clone())),
-                // abs'(u) = sign(u) = u/|u|
-                Func::Abs => times(bin(BinOp::Div, u.clone(), e.clone())),
-                Func::Sin => times(call(Func::Cos, u.clone())),
-                Func::Cos => neg(times(call(Func::Sin, u.clone()))),
-                Func::Tan => times(bin(BinOp::Add, n(1.0), sq(e.clone()))),
-                Func::Asin => bin(
-                    BinOp::Div,
-                    du.clone(),
-                    call(Func::Sqrt, bin(BinOp::Sub, n(1.0), sq(u.clone()))),
-                ),
-                Func::Acos => neg(bin(
-                    BinOp::Div,
-                    du.clone(),
-                    call(Func::Sqrt, bin(BinOp::Sub, n(1.0), sq(u.clone()))),
-                )),
-                Func::Atan => bin(
-                    BinOp::Div,
-                    du.clone(),
-                    bin(BinOp::Add, n(1.0), sq(u.clone())),
-                ),
-                Func::Sinh => times(call(Func::Cosh, u.clone())),
-                Func::Cosh => times(call(Func::Sinh, u.clone())),
-                Func::Tanh => times(bin(BinOp::Sub, n(1.0), sq(e.clone()))),
-            }
+            derivative(*f, u, e, du)
         }
     }
 }

@@ -10,9 +10,10 @@
 //! arguments are free of S. This is exact for the answers it gives (a returned
 //! decomposition is an identity); it can miss linearity hidden by cancellation.
 
-use super::algebra::{self, ser_expr, ser_exprs};
+use super::algebra::{ser_expr, ser_exprs};
 use super::expr::{BinOp, Expr};
 use super::model::Model;
+use super::simplify::{self, simplify};
 use serde::Serialize;
 
 /// Candidate sets are searched exhaustively up to this many individually linear parameters.
@@ -63,8 +64,8 @@ pub fn separate(f: &Expr, n_params: usize) -> Separable {
     Separable {
         linear: best,
         nonlinear,
-        basis: basis.iter().map(algebra::tidy).collect(),
-        offset: algebra::tidy(&offset),
+        basis: basis.iter().map(simplify).collect(),
+        offset: simplify(&offset),
     }
 }
 
@@ -148,12 +149,12 @@ pub fn affine_in(f: &Expr, set: &[usize]) -> Option<(Expr, Vec<Expr>)> {
         }
         Expr::Neg(a) => {
             let (o, c) = affine_in(a, set)?;
-            Some((algebra::neg(o), c.into_iter().map(algebra::neg).collect()))
+            Some((simplify::neg(o), c.into_iter().map(simplify::neg).collect()))
         }
         Expr::Bin(op @ (BinOp::Add | BinOp::Sub), a, b) => {
             let (oa, ca) = affine_in(a, set)?;
             let (ob, cb) = affine_in(b, set)?;
-            let combine = |x: Expr, y: Expr| algebra::bin(*op, x, y);
+            let combine = |x: Expr, y: Expr| simplify::bin(*op, x, y);
             let co = ca.into_iter().zip(cb).map(|(x, y)| combine(x, y)).collect();
             Some((combine(oa, ob), co))
         }
@@ -166,9 +167,9 @@ pub fn affine_in(f: &Expr, set: &[usize]) -> Option<(Expr, Vec<Expr>)> {
             let (o, c) = affine_in(inner, set)?;
             let scale = |x: Expr| {
                 if left {
-                    algebra::mul(x, (**outer).clone())
+                    simplify::mul(x, (**outer).clone())
                 } else {
-                    algebra::mul((**outer).clone(), x)
+                    simplify::mul((**outer).clone(), x)
                 }
             };
             Some((scale(o), c.into_iter().map(scale).collect()))
@@ -178,7 +179,7 @@ pub fn affine_in(f: &Expr, set: &[usize]) -> Option<(Expr, Vec<Expr>)> {
                 return None;
             }
             let (o, c) = affine_in(a, set)?;
-            let d = |x: Expr| algebra::div(x, (**b).clone());
+            let d = |x: Expr| simplify::div(x, (**b).clone());
             Some((d(o), c.into_iter().map(d).collect()))
         }
         Expr::Bin(BinOp::Pow, a, b) => match **b {

@@ -4,6 +4,7 @@
 pub mod algebra;
 pub mod diff;
 pub mod expr;
+pub mod functions;
 pub mod limits;
 pub mod linearity;
 pub mod model;
@@ -13,6 +14,7 @@ pub mod roles;
 pub mod simplify;
 pub mod tape;
 pub mod terms;
+pub mod transform_rules;
 pub mod transforms;
 
 pub use diff::{diff_param, diff_var};

@@ -4,8 +4,9 @@
 //! Used to group a model into coefficient × basis terms and to write a model
 //! as a ratio of polynomials for cross-multiplication.
 
-use super::algebra::{self, key};
+use super::algebra::key;
 use super::expr::{BinOp, Expr};
+use super::simplify;
 use std::collections::BTreeMap;
 
 /// Expansions larger than this many terms are kept as opaque atoms instead.
@@ -215,7 +216,7 @@ impl Poly {
             let t = term_expr(*c, m);
             acc = Some(match acc {
                 None => t,
-                Some(a) => algebra::add(a, t),
+                Some(a) => simplify::add(a, t),
             });
         }
         acc.unwrap_or(Expr::Num(0.0))
@@ -269,16 +270,16 @@ fn term_expr(c: f64, m: &Monomial) -> Expr {
     let mut num = Expr::Num(c.abs());
     let mut den = Expr::Num(1.0);
     for (a, e) in m.values() {
-        let f = algebra::pow(a.expr(), Expr::Num(e.abs() as f64));
+        let f = simplify::pow(a.expr(), Expr::Num(e.abs() as f64));
         if *e > 0 {
-            num = algebra::mul(num, f);
+            num = simplify::mul(num, f);
         } else {
-            den = algebra::mul(den, f);
+            den = simplify::mul(den, f);
         }
     }
-    let t = algebra::div(num, den);
+    let t = simplify::div(num, den);
     if c < 0.0 {
-        algebra::neg(t)
+        simplify::neg(t)
     } else {
         t
     }
@@ -297,7 +298,7 @@ pub fn expand(e: &Expr) -> Poly {
         Expr::Bin(BinOp::Mul, a, b) => {
             let (pa, pb) = (expand(a), expand(b));
             pa.mul(&pb)
-                .unwrap_or_else(|| opaque(algebra::mul(pa.to_expr(), pb.to_expr())))
+                .unwrap_or_else(|| opaque(simplify::mul(pa.to_expr(), pb.to_expr())))
         }
         Expr::Bin(BinOp::Div, a, b) => {
             let (pa, pb) = (expand(a), expand(b));
@@ -313,7 +314,7 @@ pub fn expand(e: &Expr) -> Poly {
                 }
             };
             pa.mul(&inv)
-                .unwrap_or_else(|| opaque(algebra::div(pa.to_expr(), pb.to_expr())))
+                .unwrap_or_else(|| opaque(simplify::div(pa.to_expr(), pb.to_expr())))
         }
         Expr::Bin(BinOp::Pow, a, b) => {
             let pa = expand(a);
@@ -332,9 +333,9 @@ pub fn expand(e: &Expr) -> Poly {
                     return p;
                 }
             }
-            opaque(algebra::pow(pa.to_expr(), expand(b).to_expr()))
+            opaque(simplify::pow(pa.to_expr(), expand(b).to_expr()))
         }
-        Expr::Call(f, a) => opaque(algebra::call(*f, expand(a).to_expr())),
+        Expr::Call(f, a) => opaque(simplify::call(*f, expand(a).to_expr())),
     }
 }
 

@@ -8,6 +8,7 @@
 
 use super::algebra;
 use super::expr::{BinOp, Expr, Func};
+use super::functions::facts;
 use super::model::Model;
 use crate::rules::{rules, NeutralValue, ScaleRule};
 use serde::Serialize;
@@ -327,7 +328,7 @@ fn mark_positive(e: &Expr, found: &mut [Vec<Role>]) {
         }
     };
     match e {
-        Expr::Call(Func::Log | Func::Log10 | Func::Sqrt, a) => {
+        Expr::Call(f, a) if facts(*f).needs_positive_argument() => {
             if let Expr::Param(p) = **a {
                 hit(p);
             }

@@ -2,7 +2,16 @@
 //! so that derivatives and compiled tapes stay small.
 //!
 //! The rules are local rewrites applied bottom-up by smart constructors
-//! ([`neg`], [`bin`], [`call`]) that assume their operands are already simple.
+//! ([`add`], [`sub`], [`mul`], [`div`], [`pow`], [`neg`], [`call`], and [`bin`]
+//! for an operator chosen at run time) that assume their operands are already simple.
+//!
+//! Which constructor to use when: these smart constructors are the one tier that
+//! simplifies, and every analysis that builds new expressions (differentiation,
+//! limits, transforms, polynomial expansion, equation solving) builds through
+//! them. The plain constructors `Expr::add`, `Expr::mul`, ... build exactly the
+//! node asked for, with no rewriting; use them only where the exact tree matters:
+//! the parser, tests that need an unsimplified input, and inside this module.
+//! To simplify a tree built some other way, call [`simplify`].
 //! Every rule either shrinks the tree or moves a sign or a numeric factor
 //! outward/leftward, so rewriting terminates; [`simplify`] repeats the pass
 //! until nothing changes, which makes it idempotent.
@@ -10,8 +19,9 @@
 //! Value preservation: wherever the original expression evaluates to a finite
 //! number the result evaluates to the same number, exactly for the sign and
 //! identity rules and up to rounding for the rules that regroup numeric factors
-//! (`2*(3*x) → 6*x`). Rules that are only valid on part of the real line
-//! (`exp(log(u)) → u`, `sqrt(u^2) → u`) are not applied.
+//! (`2*(3*x) → 6*x`, `a*(1/r) → a/r`). Rules that are only valid on part of
+//! the real line (`exp(log(u)) → u`, `sqrt(u^2) → u`, `(u^2)^0.5 → u`) are not
+//! applied; `log(exp(u)) → u` is, since it holds for every real u.
 
 use super::expr::{BinOp, Expr, Func};
 
@@ -90,15 +100,40 @@ pub fn bin(op: BinOp, a: Expr, b: Expr) -> Expr {
         return Expr::Bin(op, Box::new(a), Box::new(b));
     }
     match op {
-        BinOp::Add => add(a, b),
-        BinOp::Sub => sub(a, b),
-        BinOp::Mul => mul(a, b),
-        BinOp::Div => div(a, b),
-        BinOp::Pow => pow(a, b),
+        BinOp::Add => plus(a, b),
+        BinOp::Sub => minus(a, b),
+        BinOp::Mul => times(a, b),
+        BinOp::Div => over(a, b),
+        BinOp::Pow => power(a, b),
     }
 }
 
-fn add(a: Expr, b: Expr) -> Expr {
+/// `a + b` for already simplified operands.
+pub fn add(a: Expr, b: Expr) -> Expr {
+    bin(BinOp::Add, a, b)
+}
+
+/// `a - b` for already simplified operands.
+pub fn sub(a: Expr, b: Expr) -> Expr {
+    bin(BinOp::Sub, a, b)
+}
+
+/// `a * b` for already simplified operands.
+pub fn mul(a: Expr, b: Expr) -> Expr {
+    bin(BinOp::Mul, a, b)
+}
+
+/// `a / b` for already simplified operands.
+pub fn div(a: Expr, b: Expr) -> Expr {
+    bin(BinOp::Div, a, b)
+}
+
+/// `a ^ b` for already simplified operands.
+pub fn pow(a: Expr, b: Expr) -> Expr {
+    bin(BinOp::Pow, a, b)
+}
+
+fn plus(a: Expr, b: Expr) -> Expr {
     if is(&a, 0.0) {
         return b;
     }
@@ -106,25 +141,25 @@ fn add(a: Expr, b: Expr) -> Expr {
         return a;
     }
     if let Some(c) = num(&b).filter(|c| *c < 0.0) {
-        return sub(a, Expr::Num(-c));
+        return minus(a, Expr::Num(-c));
     }
     if let Some(c) = num(&a).filter(|c| *c < 0.0) {
-        return sub(b, Expr::Num(-c));
+        return minus(b, Expr::Num(-c));
     }
     if let Expr::Neg(y) = b {
-        return sub(a, *y);
+        return minus(a, *y);
     }
     if let Expr::Neg(x) = a {
-        return sub(b, *x);
+        return minus(b, *x);
     }
     if a == b {
         // x + x = 2*x exactly.
-        return mul(Expr::Num(2.0), a);
+        return times(Expr::Num(2.0), a);
     }
     Expr::add(a, b)
 }
 
-fn sub(a: Expr, b: Expr) -> Expr {
+fn minus(a: Expr, b: Expr) -> Expr {
     if is(&b, 0.0) {
         return a;
     }
@@ -135,19 +170,19 @@ fn sub(a: Expr, b: Expr) -> Expr {
         return Expr::Num(0.0);
     }
     if let Some(c) = num(&b).filter(|c| *c < 0.0) {
-        return add(a, Expr::Num(-c));
+        return plus(a, Expr::Num(-c));
     }
     if let Expr::Neg(y) = b {
-        return add(a, *y);
+        return plus(a, *y);
     }
     if let Expr::Neg(x) = a {
         // -x - b = -(x + b)
-        return neg(add(*x, b));
+        return neg(plus(*x, b));
     }
     Expr::sub(a, b)
 }
 
-fn mul(a: Expr, b: Expr) -> Expr {
+fn times(a: Expr, b: Expr) -> Expr {
     if is(&a, 0.0) || is(&b, 0.0) {
         return Expr::Num(0.0);
     }
@@ -167,13 +202,13 @@ fn mul(a: Expr, b: Expr) -> Expr {
         // Numbers go in front: x*c = c*x exactly. (Two numbers reach here only
         // when their product overflows; swapping them would recurse forever —
         // found by fuzzing.)
-        return mul(b, a);
+        return times(b, a);
     }
     if let Expr::Neg(x) = a {
-        return neg(mul(*x, b));
+        return neg(times(*x, b));
     }
     if let Expr::Neg(y) = b {
-        return neg(mul(a, *y));
+        return neg(times(a, *y));
     }
     if let Some(c1) = num(&a) {
         // Collect numeric factors: c1*(c2*y) → (c1*c2)*y, c1*(c2/y) → (c1*c2)/y.
@@ -182,7 +217,7 @@ fn mul(a: Expr, b: Expr) -> Expr {
                 if let Some(c2) = num(x) {
                     let c = c1 * c2;
                     if c.is_finite() && c != 0.0 {
-                        return mul(Expr::Num(c), (**y).clone());
+                        return times(Expr::Num(c), (**y).clone());
                     }
                 }
             }
@@ -190,7 +225,7 @@ fn mul(a: Expr, b: Expr) -> Expr {
                 if let Some(c2) = num(x) {
                     let c = c1 * c2;
                     if c.is_finite() && c != 0.0 {
-                        return div(Expr::Num(c), (**y).clone());
+                        return over(Expr::Num(c), (**y).clone());
                     }
                 }
             }
@@ -200,21 +235,27 @@ fn mul(a: Expr, b: Expr) -> Expr {
     }
     // Neither operand is a number: pull a leading numeric factor out.
     if let Some((c, x)) = num_factor(&a) {
-        let rest = mul(x.clone(), b);
-        return mul(Expr::Num(c), rest);
+        let rest = times(x.clone(), b);
+        return times(Expr::Num(c), rest);
     }
     if let Some((c, y)) = num_factor(&b) {
-        let rest = mul(a, y.clone());
-        return mul(Expr::Num(c), rest);
+        let rest = times(a, y.clone());
+        return times(Expr::Num(c), rest);
     }
     if a == b {
         // x*x = x^2 exactly (`expr::pow` squares by one multiplication).
         return Expr::pow(a, Expr::Num(2.0));
     }
+    if let Expr::Bin(BinOp::Div, one, r) = &b {
+        if is(one, 1.0) {
+            // a*(1/r) → a/r: one rounding instead of two.
+            return over(a, (**r).clone());
+        }
+    }
     Expr::mul(a, b)
 }
 
-fn div(a: Expr, b: Expr) -> Expr {
+fn over(a: Expr, b: Expr) -> Expr {
     if is(&b, 1.0) {
         return a;
     }
@@ -228,22 +269,22 @@ fn div(a: Expr, b: Expr) -> Expr {
         return Expr::Num(1.0);
     }
     if let Expr::Neg(x) = a {
-        return neg(div(*x, b));
+        return neg(over(*x, b));
     }
     if let Expr::Neg(y) = b {
-        return neg(div(a, *y));
+        return neg(over(a, *y));
     }
     if num(&b).is_none() {
         if let Some((c, x)) = num_factor(&a) {
             // (c*x)/b → c*(x/b): collects the factor where products can see it.
-            let rest = div(x.clone(), b);
-            return mul(Expr::Num(c), rest);
+            let rest = over(x.clone(), b);
+            return times(Expr::Num(c), rest);
         }
     }
     Expr::div(a, b)
 }
 
-fn pow(a: Expr, b: Expr) -> Expr {
+fn power(a: Expr, b: Expr) -> Expr {
     if is(&b, 1.0) {
         return a;
     }
@@ -253,7 +294,15 @@ fn pow(a: Expr, b: Expr) -> Expr {
     if let (Expr::Neg(x), Some(n)) = (&a, num(&b)) {
         // (-x)^n = x^n for an even integer n within `expr::pow`'s integer range.
         if n.fract() == 0.0 && n.abs() <= 64.0 && (n / 2.0).fract() == 0.0 {
-            return pow((**x).clone(), b);
+            return power((**x).clone(), b);
+        }
+    }
+    if let (Expr::Bin(BinOp::Pow, base, m), Some(n)) = (&a, num(&b)) {
+        // (u^m)^n = u^(m·n) for integers m and n (for every real u where u^m is finite).
+        if let Some(m) = num(m) {
+            if m.fract() == 0.0 && n.fract() == 0.0 {
+                return power((**base).clone(), Expr::Num(m * n));
+            }
         }
     }
     Expr::pow(a, b)

@@ -6,6 +6,7 @@ use super::algebra::{self, ser_expr};
 use super::expr::{BinOp, Expr, Func};
 use super::model::Model;
 use super::poly::{self, Atom};
+use super::simplify::{self, simplify};
 use serde::Serialize;
 
 /// Peak shape of a bump term.
@@ -145,8 +146,8 @@ fn classify(t: &Expr, v: usize) -> Shape {
     for (_, a) in &trig {
         if let Some(cs) = coeffs_in(a, v) {
             if cs.iter().all(|(d, _)| *d == 0 || *d == 1) {
-                let w = algebra::tidy(&coef(&cs, 1));
-                let period = algebra::tidy(&algebra::div(
+                let w = simplify(&coef(&cs, 1));
+                let period = simplify(&simplify::div(
                     Expr::Num(2.0 * std::f64::consts::PI),
                     w.clone(),
                 ));
@@ -167,21 +168,21 @@ fn classify(t: &Expr, v: usize) -> Shape {
         if min >= 0 && max == 2 {
             // exp(a2 x² + a1 x + a0) = exp(−(x − c)²/(2σ²))·const: c = −a1/(2a2), σ = sqrt(−1/(2a2))
             let (a2, a1) = (coef(&cs, 2), coef(&cs, 1));
-            let centre = algebra::tidy(&algebra::neg(algebra::div(
+            let centre = simplify(&simplify::neg(simplify::div(
                 a1,
-                algebra::mul(Expr::Num(2.0), a2.clone()),
+                simplify::mul(Expr::Num(2.0), a2.clone()),
             )));
-            let width = algebra::tidy(&algebra::pow(
-                algebra::neg(algebra::div(
+            let width = simplify(&simplify::pow(
+                simplify::neg(simplify::div(
                     Expr::Num(1.0),
-                    algebra::mul(Expr::Num(2.0), a2),
+                    simplify::mul(Expr::Num(2.0), a2),
                 )),
                 Expr::Num(0.5),
             ));
             return bump(BumpKind::Gaussian, centre, width);
         }
         if min >= 0 && max == 1 {
-            let rate = algebra::tidy(&coef(&cs, 1));
+            let rate = simplify(&coef(&cs, 1));
             if in_sum_with_constant(t, a) {
                 return Shape::Saturating;
             }
@@ -202,15 +203,15 @@ fn classify(t: &Expr, v: usize) -> Shape {
             if dq == 2 && dp == 0 {
                 // 1/(q2 x² + q1 x + q0): centre −q1/(2q2), half-width sqrt(q0/q2 − c²)
                 let (q2, q1, q0) = (coef(&qc, 2), coef(&qc, 1), coef(&qc, 0));
-                let c = algebra::neg(algebra::div(q1, algebra::mul(Expr::Num(2.0), q2.clone())));
-                let w = algebra::pow(
-                    algebra::sub(
-                        algebra::div(q0, q2),
-                        algebra::pow(c.clone(), Expr::Num(2.0)),
+                let c = simplify::neg(simplify::div(q1, simplify::mul(Expr::Num(2.0), q2.clone())));
+                let w = simplify::pow(
+                    simplify::sub(
+                        simplify::div(q0, q2),
+                        simplify::pow(c.clone(), Expr::Num(2.0)),
                     ),
                     Expr::Num(0.5),
                 );
-                return bump(BumpKind::Lorentzian, algebra::tidy(&c), algebra::tidy(&w));
+                return bump(BumpKind::Lorentzian, simplify(&c), simplify(&w));
             }
             if dq >= 1 && dp == dq {
                 return Shape::Saturating;

@@ -16,10 +16,13 @@
 
 use super::algebra::{self, ser_expr};
 use super::expr::{Expr, Func};
+use super::functions::facts;
 use super::linearity::affine_in;
 use super::model::Model;
 use super::poly::{self, Atom, Poly};
-use crate::rules::{rules, Guard, RewriteRule, TransformSpec};
+use super::simplify::{self, simplify};
+use super::transform_rules::{transform_library, RewriteRule, TransformSpec};
+use crate::rules::Guard;
 use serde::Serialize;
 
 /// One new linear coefficient φ_k = `expr_in_params`, multiplying `basis`.
@@ -126,7 +129,7 @@ pub fn response_var(model: &Model) -> Expr {
 /// (fewest open parameters) first. Forms with no linear coefficient are dropped.
 pub fn linearise(model: &Model) -> Vec<LinearisedForm> {
     let mut out = Vec::new();
-    for spec in &rules().transforms.transforms {
+    for spec in &transform_library().transforms {
         if spec.plateau {
             for a in plateau_candidates(&model.rhs, model.n_params()) {
                 out.extend(apply_transform(model, spec, Some(a)));
@@ -160,7 +163,7 @@ pub fn apply_transform(
     let input = match plateau {
         Some(a) => {
             let (_, g) = affine_in(&model.rhs, &[a])?;
-            algebra::tidy(g.first()?)
+            simplify(g.first()?)
         }
         None => model.rhs.clone(),
     };
@@ -172,9 +175,9 @@ pub fn apply_transform(
             _ => None,
         })
     };
-    let target = algebra::tidy(&subst(&spec.target, &response_var(model)));
-    let applied = algebra::tidy(&subst(&spec.apply, &input));
-    let tr = &rules().transforms;
+    let target = simplify(&subst(&spec.target, &response_var(model)));
+    let applied = simplify(&subst(&spec.apply, &input));
+    let tr = transform_library();
     let sets: Vec<&[RewriteRule]> = spec
         .rule_sets
         .iter()
@@ -215,7 +218,7 @@ fn form_from_poly(p: &Poly, np: usize, plateau: Option<usize>) -> Option<Lineari
             .iter()
             .all(|q| nonlinear.contains(q))
         {
-            offset = algebra::add(offset, algebra::mul(coef, basis));
+            offset = simplify::add(offset, simplify::mul(coef, basis));
         } else {
             coefficients.push(Coefficient {
                 expr_in_params: coef,
@@ -267,7 +270,7 @@ pub fn solve_back_map(coefs: &[Expr], n_params: usize, known: &[usize]) -> BackM
             if let Some(e) = algebra::isolate(Expr::Param(n_params + k), &coefs[k], p, &mut n) {
                 steps.push(BackStep {
                     param: p,
-                    expr: algebra::tidy(&e),
+                    expr: simplify(&e),
                     from_coefficient: k,
                 });
                 notes.extend(n);
@@ -307,8 +310,8 @@ pub fn rewrite(e: &Expr, sets: &[&[RewriteRule]], expand_fns: &[Func], budget: &
     *budget -= 1;
     let e = match e {
         Expr::Num(_) | Expr::Var(_) | Expr::Param(_) => e.clone(),
-        Expr::Neg(a) => algebra::neg(rewrite(a, sets, expand_fns, budget)),
-        Expr::Bin(op, a, b) => algebra::bin(
+        Expr::Neg(a) => simplify::neg(rewrite(a, sets, expand_fns, budget)),
+        Expr::Bin(op, a, b) => simplify::bin(
             *op,
             rewrite(a, sets, expand_fns, budget),
             rewrite(b, sets, expand_fns, budget),
@@ -318,7 +321,7 @@ pub fn rewrite(e: &Expr, sets: &[&[RewriteRule]], expand_fns: &[Func], budget: &
             if expand_fns.contains(f) && algebra::sum_terms(&a).len() > 1 {
                 a = poly::expand(&a).to_expr();
             }
-            algebra::call(*f, a)
+            simplify::call(*f, a)
         }
     };
     for set in sets {
@@ -327,7 +330,7 @@ pub fn rewrite(e: &Expr, sets: &[&[RewriteRule]], expand_fns: &[Func], budget: &
             if !pattern_match(&rule.from, &e, &mut binds) || !guards_hold(rule, &binds) {
                 continue;
             }
-            let out = algebra::tidy(&rule.to.map(&|n| match n {
+            let out = simplify(&rule.to.map(&|n| match n {
                 Expr::Param(i) => binds.get(*i).cloned().flatten(),
                 _ => None,
             }));
@@ -389,7 +392,7 @@ fn collect_log_conditions(e: &Expr, m: &Model, out: &mut Vec<String>) {
     fn walk(e: &Expr, add: &mut dyn FnMut(&Expr)) {
         match e {
             Expr::Call(f, a) => {
-                if matches!(f, Func::Log | Func::Log10 | Func::Sqrt) {
+                if facts(*f).needs_positive_argument() {
                     add(a);
                 }
                 walk(a, add);
@@ -437,7 +440,7 @@ pub fn cross_multiply(model: &Model) -> Option<LinearisedForm> {
                 basis,
             });
         } else {
-            offset = algebra::add(offset.clone(), algebra::mul(ce, basis));
+            offset = simplify::add(offset.clone(), simplify::mul(ce, basis));
         }
     };
     for (m, c) in p.group_by(&is_data) {
@@ -448,10 +451,10 @@ pub fn cross_multiply(model: &Model) -> Option<LinearisedForm> {
         let me = poly::mono_expr(&m);
         if me == lead_key {
             let v = c.as_number()?;
-            target = Some(algebra::mul(Expr::Num(v), algebra::mul(y.clone(), me)));
+            target = Some(simplify::mul(Expr::Num(v), simplify::mul(y.clone(), me)));
             continue;
         }
-        push(&c, algebra::neg(algebra::mul(y.clone(), me)));
+        push(&c, simplify::neg(simplify::mul(y.clone(), me)));
     }
     if coefficients.is_empty() {
         return None;

@@ -7,10 +7,16 @@
 //! exactly; an accepted table has equal-length columns, unique non-empty
 //! names and only finite or missing (NaN) values; an error prints as one
 //! non-empty line naming the source; and an accepted table printed back as
-//! CSV (shortest round-trip numbers) reads again to the same bits.
+//! CSV (shortest round-trip numbers) reads again to the same bits. The
+//! layout options (each delimiter, the decimal comma, a header row) read the
+//! same text without panicking, and a table's columns stacked into long form
+//! give one row per non-empty cell.
 #![no_main]
 
-use foothold::data::{parse_delimited, read_table, DataError, Dataset, ReadOptions};
+use foothold::data::{
+    match_columns, parse_delimited, parse_delimited_with, read_table, stack_columns, DataError,
+    Dataset, DecimalMark, ReadOptions, Separator,
+};
 use libfuzzer_sys::fuzz_target;
 use std::path::PathBuf;
 use std::sync::OnceLock;
@@ -149,6 +155,55 @@ fn check_round_trip(d: &Dataset) {
     );
 }
 
+/// Every column but the first stacked into long form (the wide-layout
+/// options): one row per non-empty cell, the other columns kept, a pattern
+/// `*` naming every column.
+fn check_wide(d: &Dataset) {
+    assert_eq!(match_columns(d, "*", "--y").ok().as_deref(), Some(&d.columns[..]));
+    if d.columns.len() < 2 {
+        return;
+    }
+    let cols = d.columns[1..].to_vec();
+    match stack_columns(d, &cols, "value", Some("label")) {
+        Ok(s) => {
+            let cells: usize = cols
+                .iter()
+                .map(|c| d.column(c).unwrap().iter().filter(|v| !v.is_nan()).count())
+                .sum();
+            assert_eq!(s.data.n_rows(), cells, "stacked rows");
+            assert_eq!(s.empty_cells + cells, d.n_rows() * cols.len());
+            assert_eq!(s.data.columns.len(), 3, "{:?}", s.data.columns);
+            assert!(s.data.values.iter().all(|c| c.len() == cells));
+            assert_eq!(s.data.text_column("label").map(|t| t.len()), Some(cells));
+        }
+        Err(e) => check_result(&Err(e), &d.source),
+    }
+}
+
+/// The layout options on the same text: no panic, the usual properties.
+fn check_layouts(text: &str, path: &str) {
+    let variants = [
+        (Some(Separator::Byte(b';')), Some(DecimalMark::Comma), None),
+        (Some(Separator::Byte(b'|')), None, Some(2)),
+        (Some(Separator::Whitespace), Some(DecimalMark::Point), Some(1)),
+        (None, Some(DecimalMark::Comma), None),
+        (Some(Separator::Byte(b'\t')), None, Some(3)),
+    ];
+    for (delimiter, decimal, header_row) in variants {
+        let opts = ReadOptions {
+            delimiter,
+            decimal,
+            header_row,
+            ..ReadOptions::default()
+        };
+        let r = parse_delimited_with(text, path, &opts).map(|(d, _)| d);
+        check_result(&r, path);
+        if let Ok(d) = &r {
+            check_wide(d);
+        }
+    }
+}
+
 /// Delimited text: in memory, then as a file with the default and with tight limits.
 fn check_text(data: &[u8]) {
     let path = put("in.csv", data);
@@ -160,6 +215,10 @@ fn check_text(data: &[u8]) {
     check_result(&memory, if text.is_some() { &path } else { LOSSY });
     if let Ok(d) = &memory {
         check_round_trip(d);
+        check_wide(d);
+    }
+    if let Some(t) = text {
+        check_layouts(t, &path);
     }
 
     let opts = ReadOptions::default();

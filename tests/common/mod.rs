@@ -3,3 +3,4 @@
 pub mod cli;
 pub mod strd;
 pub mod synthetic;
+pub mod xlsx;

@@ -3,11 +3,15 @@
 //! text or PNG files. Inputs are plain structs so any caller can fill them.
 
 mod geometry;
+mod labels;
 mod overlay;
 mod panel;
+mod png_text;
 mod style;
 
-pub use overlay::{group_panel, GroupSeries, Overlay, MAX_LEGEND};
+pub use overlay::{
+    common_y_range, group_panel, GroupSeries, Overlay, GROUP_COLOURS, MAX_LEGEND, MAX_OVERLAY_GROUPS,
+};
 pub use panel::{Curve, Panel, Segment};
 pub use style::format_num;
 
@@ -29,10 +33,11 @@ pub enum PlotError {
 
 /// Columns in a survey sheet (y, 1/y, log y side by side).
 const SURVEY_COLUMNS: usize = 3;
-/// Pixel size of one survey panel.
-const SURVEY_PANEL: (u32, u32) = (460, 380);
-/// Pixel size of the whole fit sheet.
-const FIT_SIZE: (u32, u32) = (1200, 900);
+/// Pixel size of one survey panel: three side by side fill the page's text
+/// column (about 1050 pixels) without scaling the text down.
+const SURVEY_PANEL: (u32, u32) = (350, 300);
+/// Pixel size of the whole fit sheet (the width of the page's text column).
+const FIT_SIZE: (u32, u32) = (1050, 800);
 
 /// Input of a fit sheet: data, fitted values, dense curves and residuals.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -177,10 +182,10 @@ where
 /// Draws into a PNG file of the given size.
 fn png_of<F>(size: (u32, u32), path: &Path, draw: F) -> Result<(), PlotError>
 where
-    F: FnOnce(&DrawingArea<BitMapBackend, Shift>) -> Result<(), String>,
+    F: FnOnce(&DrawingArea<png_text::GlyphBitmap, Shift>) -> Result<(), String>,
 {
     guarded(|| {
-        let root = BitMapBackend::new(path, size).into_drawing_area();
+        let root = png_text::GlyphBitmap::new(BitMapBackend::new(path, size)).into_drawing_area();
         draw(&root)
     })
 }

@@ -35,8 +35,10 @@ pub struct Overlay {
     pub groups: Vec<GroupSeries>,
 }
 
-/// Okabe & Ito (2008) colours without yellow (too pale on white), in turn.
-const GROUP_COLOURS: [RGBColor; 7] = [
+/// Twelve qualitative group colours: Okabe & Ito (2008) without yellow (too
+/// pale on white), then indigo, wine, olive and green from Tol (2021, "Colour
+/// schemes", SRON/EPS/TN/09-002, the muted set) and a mid grey.
+pub const GROUP_COLOURS: [RGBColor; 12] = [
     RGBColor(0x00, 0x72, 0xB2),
     RGBColor(0xD5, 0x5E, 0x00),
     RGBColor(0x00, 0x9E, 0x73),
@@ -44,24 +46,71 @@ const GROUP_COLOURS: [RGBColor; 7] = [
     RGBColor(0x56, 0xB4, 0xE9),
     RGBColor(0xE6, 0x9F, 0x00),
     RGBColor(0x00, 0x00, 0x00),
+    RGBColor(0x33, 0x22, 0x88),
+    RGBColor(0x88, 0x22, 0x55),
+    RGBColor(0x99, 0x99, 0x33),
+    RGBColor(0x11, 0x77, 0x33),
+    RGBColor(0x88, 0x88, 0x88),
 ];
+
+/// Most groups drawn together on the overlay chart; past this the page shows
+/// one panel per group on a common y scale instead.
+pub const MAX_OVERLAY_GROUPS: usize = GROUP_COLOURS.len();
+
+/// Marker shapes, in turn: circle, triangle, square, diamond, downward
+/// triangle, cross.
+const SHAPES: usize = 6;
 
 /// Legend entries listed before the rest are summarised as "… and N more".
 pub const MAX_LEGEND: usize = 22;
 /// Pixel size of the overlay sheet (chart and legend column).
-pub const OVERLAY_SIZE: (u32, u32) = (1200, 640);
+pub const OVERLAY_SIZE: (u32, u32) = (1050, 600);
 /// Width of the legend column.
-const LEGEND_WIDTH: u32 = 230;
+const LEGEND_WIDTH: u32 = 220;
 /// Panels per row in the grid of groups, and the pixel size of one panel.
 pub const GRID_COLUMNS: usize = 3;
-const GRID_PANEL: (u32, u32) = (400, 300);
+const GRID_PANEL: (u32, u32) = (350, 270);
 
-/// Colour and marker shape (0 circle, 1 triangle, 2 square) of group `i`.
+/// Colour and marker shape of group `i`: the colour and the shape both
+/// change from one group to the next, so the first twelve groups differ in
+/// colour and neighbours in shape too.
 fn look(i: usize) -> (RGBColor, usize) {
-    (
-        GROUP_COLOURS[i % GROUP_COLOURS.len()],
-        (i / GROUP_COLOURS.len()) % 3,
-    )
+    (GROUP_COLOURS[i % GROUP_COLOURS.len()], i % SHAPES)
+}
+
+/// Outline of marker `shape` of radius `r` around (0, 0), in pixels.
+fn shape_outline(shape: usize, r: i32) -> Vec<(i32, i32)> {
+    let rf = r as f64;
+    match shape % SHAPES {
+        0 => (0..16)
+            .map(|k| {
+                let t = k as f64 * std::f64::consts::TAU / 16.0;
+                ((rf * t.cos()).round() as i32, (rf * t.sin()).round() as i32)
+            })
+            .collect(),
+        1 => vec![(0, -r - 1), (r + 1, r), (-r - 1, r)],
+        2 => vec![(-r + 1, -r + 1), (r - 1, -r + 1), (r - 1, r - 1), (-r + 1, r - 1)],
+        3 => vec![(0, -r - 1), (r + 1, 0), (0, r + 1), (-r - 1, 0)],
+        4 => vec![(-r - 1, -r), (r + 1, -r), (0, r + 1)],
+        _ => {
+            // A diagonal cross with arms a third of the radius wide.
+            let (a, b) = (r, (r / 3).max(1));
+            vec![
+                (-a, -a + b),
+                (-a + b, -a),
+                (0, -b),
+                (a - b, -a),
+                (a, -a + b),
+                (b, 0),
+                (a, a - b),
+                (a - b, a),
+                (0, b),
+                (-a + b, a),
+                (-a, a - b),
+                (-b, 0),
+            ]
+        }
+    }
 }
 
 fn err<E: std::fmt::Debug>(e: E) -> String {
@@ -129,20 +178,10 @@ pub(crate) fn draw_overlay<DB: DrawingBackend>(
             .iter()
             .copied()
             .filter(|p| xs.contains(p.0) && ys.contains(p.1));
-        let fill = colour.mix(0.75).filled();
-        match shape {
-            0 => chart
-                .draw_series(pts.map(|p| Circle::new(p, 3, fill)))
-                .map(|_| ()),
-            1 => chart
-                .draw_series(pts.map(|p| TriangleMarker::new(p, 4, fill)))
-                .map(|_| ()),
-            _ => chart
-                .draw_series(
-                    pts.map(|p| EmptyElement::at(p) + Rectangle::new([(-3, -3), (3, 3)], fill)),
-                )
-                .map(|_| ()),
-        }
+        chart
+            .draw_series(pts.map(|p| {
+                EmptyElement::at(p) + Polygon::new(shape_outline(shape, 4), colour.mix(0.8).filled())
+            }))
         .map_err(err)?;
     }
     draw_legend(&right, o)?;
@@ -172,12 +211,10 @@ fn draw_legend<DB: DrawingBackend>(
             colour.stroke_width(if g.curve.is_empty() { 0 } else { 2 }),
         ))
         .map_err(err)?;
-        let fill = colour.mix(0.75).filled();
-        match shape {
-            0 => area.draw(&Circle::new((25, y), 4, fill)),
-            1 => area.draw(&TriangleMarker::new((25, y), 5, fill)),
-            _ => area.draw(&Rectangle::new([(21, y - 4), (29, y + 4)], fill)),
-        }
+        area.draw(
+            &(EmptyElement::at((25, y))
+                + Polygon::new(shape_outline(shape, 5), colour.mix(0.8).filled())),
+        )
         .map_err(err)?;
         let mut label = g.label.clone();
         if label.chars().count() > 18 {
@@ -213,6 +250,17 @@ pub fn group_panel(g: &GroupSeries, x_label: &str, y_label: &str) -> Panel {
         p.curves.push((g.curve.clone(), String::new()));
     }
     p
+}
+
+/// The y range every group's panel shares: all points, and the fitted
+/// curves where they stay near the data (a wild curve is left to clipping).
+pub fn common_y_range(groups: &[GroupSeries]) -> Option<(f64, f64)> {
+    let ye = extent(groups.iter().flat_map(|g| g.points.iter().map(|p| p.1)))?;
+    let curve_y: Vec<f64> = groups
+        .iter()
+        .flat_map(|g| g.curve.iter().map(|p| p.1))
+        .collect();
+    Some(widen_near(ye, &curve_y))
 }
 
 /// Pixel size of a grid of `n` group panels.

@@ -2,6 +2,7 @@
 //! markers and curves on any plotters backend.
 
 use super::geometry::{clip_polyline, clip_segment, extent, padded, plottable, widen_near, Span};
+use super::labels::{around, place, Pending, Rect};
 use super::style::{self, FAMILY};
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -38,6 +39,8 @@ pub struct Panel {
     pub dashed_curves: Vec<Curve>,
     /// Why the panel may have no valid points (e.g. "y ≤ 0 has no log").
     pub empty_reason: String,
+    /// A y range `(low, high)` shared with other panels; `None` scales y to this panel.
+    pub y_range: Option<(f64, f64)>,
 }
 
 impl Panel {
@@ -128,7 +131,10 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
     let (xlo, xhi) = widen_near(xe, &fx);
     let (ylo, yhi) = widen_near(ye, &fy);
     let xs = padded(xlo, xhi);
-    let ys = padded(ylo, yhi);
+    let ys = match panel.y_range {
+        Some((lo, hi)) => padded(lo, hi),
+        None => padded(ylo, yhi),
+    };
 
     let mut chart = ChartBuilder::on(area)
         .caption(&panel.title, font(style::TITLE_PX, &style::INK))
@@ -237,7 +243,10 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
         }
     }
 
+    // Lines and markers first; their labels are placed together afterwards so
+    // that none overlaps another or runs past the plotting box.
     let mut off_scale = 0usize;
+    let mut pending: Vec<PendingText> = Vec::new();
     for (a, b, label) in &panel.segments {
         let (Some(a), Some(b)) = (panel.tp(*a), panel.tp(*b)) else {
             off_scale += 1;
@@ -255,12 +264,7 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
             .map_err(err)?;
         if !label.is_empty() {
             let mid = ((a.0 + b.0) / 2.0, (a.1 + b.1) / 2.0);
-            let anchor = font(style::LABEL_PX, &style::INK).pos(Pos::new(HPos::Left, VPos::Top));
-            chart
-                .draw_series(std::iter::once(
-                    EmptyElement::at(mid) + Text::new(label.clone(), (6, 6), anchor),
-                ))
-                .map_err(err)?;
+            pending.push(PendingText::new(label, &style::INK, Near::Point(mid)));
         }
     }
 
@@ -279,14 +283,7 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
             ))
             .map_err(err)?;
         if !label.is_empty() {
-            // Labels go below the line when it runs close to the top edge, and
-            // at whichever end of the line has fewer points crowding it.
-            let near_top = (ys.hi - y) < (ys.hi - ys.lo) * 0.08;
-            let (v, dy) = if near_top {
-                (VPos::Top, 4)
-            } else {
-                (VPos::Bottom, -4)
-            };
+            // Start at whichever end of the line has fewer points crowding it.
             let crowd = |left: bool| {
                 pts.iter()
                     .filter(|p| {
@@ -297,17 +294,11 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
                     .count()
             };
             let left = crowd(true) < crowd(false);
-            let (h, x, dx) = if left {
-                (HPos::Left, xs.lo, 6)
-            } else {
-                (HPos::Right, xs.hi, -6)
-            };
-            let anchor = font(style::LABEL_PX, &style::PLATEAU).pos(Pos::new(h, v));
-            chart
-                .draw_series(std::iter::once(
-                    EmptyElement::at((x, *y)) + Text::new(label.clone(), (dx, dy), anchor),
-                ))
-                .map_err(err)?;
+            pending.push(PendingText::new(
+                label,
+                &style::PLATEAU,
+                Near::Line { y: *y, left },
+            ));
         }
     }
 
@@ -327,19 +318,7 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
             )))
             .map_err(err)?;
         if !label.is_empty() {
-            // Keep the label inside the box: flip to the left in the right third.
-            let right = p.0 > xs.lo + (xs.hi - xs.lo) * 0.66;
-            let (h, dx) = if right {
-                (HPos::Right, -9)
-            } else {
-                (HPos::Left, 9)
-            };
-            let anchor = font(style::LABEL_PX, &style::MARKER).pos(Pos::new(h, VPos::Bottom));
-            chart
-                .draw_series(std::iter::once(
-                    EmptyElement::at(p) + Text::new(label.clone(), (dx, -7), anchor),
-                ))
-                .map_err(err)?;
+            pending.push(PendingText::new(label, &style::MARKER, Near::Point(p)));
         }
     }
 
@@ -362,31 +341,137 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
     }
     let corners = quiet_corners(&busy, xs, ys);
     let legend_corner = corners[0];
-    if !notes.is_empty() {
+
+    // Pixel space of the plotting box, for measuring and placing text.
+    let plot = chart.plotting_area();
+    let base = plot.get_base_pixel();
+    let (pw, ph) = plot.dim_in_pixel();
+    let (pw, ph) = (pw as i32, ph as i32);
+    let to_px = |p: (f64, f64)| {
+        let (x, y) = plot.map_coordinate(&p);
+        (x - base.0, y - base.1)
+    };
+    let mut reserved: Vec<Rect> = Vec::new();
+    if legend {
+        // The legend box as the drawing library lays it out (margin 8, a
+        // 26-pixel sample column, one line per entry), measured generously.
+        let entries: Vec<&String> = panel
+            .curves
+            .iter()
+            .chain(&panel.dashed_curves)
+            .map(|c| &c.1)
+            .filter(|l| !l.is_empty())
+            .collect();
+        let label_font = font(style::LABEL_PX, &style::INK);
+        let mut w = 0i32;
+        for l in &entries {
+            w = w.max(area.estimate_text_size(l, &label_font).map_err(err)?.0 as i32);
+        }
+        let (w, h) = (w + 26 + 24, entries.len() as i32 * (style::LABEL_PX as i32 + 8) + 14);
+        let (right, upper) = legend_corner;
+        let x0 = if right { pw - 8 - w } else { 8 };
+        let y0 = if upper { 8 } else { ph - 8 - h };
+        reserved.push(Rect::at((x0, y0), (w, h)));
+    }
+    let note = if notes.is_empty() {
+        None
+    } else {
         let corner = if legend { corners[1] } else { corners[0] };
         let text = notes.join("; ");
+        let style = font(style::LABEL_PX - 1, &style::MUTED);
+        let (tw, th) = text_box(area, &text, &style)?;
         let (right, upper) = corner;
-        let h = if right { HPos::Right } else { HPos::Left };
-        let v = if upper { VPos::Top } else { VPos::Bottom };
-        let anchor = font(style::LABEL_PX - 1, &style::MUTED).pos(Pos::new(h, v));
-        let (tw, th) = area.estimate_text_size(&text, &anchor).map_err(err)?;
-        let (tw, th) = (tw as i32, th as i32);
-        let dx = if right { -6 } else { 6 };
-        let dy = if upper { 6 } else { -6 };
-        let x0 = if right { dx - tw - 3 } else { dx - 3 };
-        let y0 = if upper { dy - 2 } else { dy - th - 2 };
-        let at = (
-            if right { xs.hi } else { xs.lo },
-            if upper { ys.hi } else { ys.lo },
-        );
-        chart
-            .draw_series(std::iter::once(
-                EmptyElement::at(at)
-                    + Rectangle::new(
-                        [(x0, y0), (x0 + tw + 6, y0 + th + 4)],
-                        WHITE.mix(0.85).filled(),
-                    )
-                    + Text::new(text, (dx, dy), anchor),
+        let x0 = if right { pw - 6 - tw } else { 6 };
+        let y0 = if upper { 6 } else { ph - 6 - th };
+        reserved.push(Rect::at((x0 - 3, y0 - 2), (tw + 6, th + 4)));
+        Some((text, style, (x0, y0), (tw, th)))
+    };
+
+    // Text positions are chosen in pixels; obstacles are the data points and
+    // samples along the lines drawn.
+    let mut obstacles: Vec<(i32, i32)> = pts.iter().map(|p| to_px(*p)).collect();
+    for (a, b, _) in &panel.segments {
+        if let (Some(a), Some(b)) = (panel.tp(*a), panel.tp(*b)) {
+            if let Some((a, b)) = clip_segment(a, b, xs, ys) {
+                // A sample every three pixels or so along the drawn piece.
+                let (pa, pb) = (to_px(a), to_px(b));
+                let len = (pb.0 - pa.0).abs().max((pb.1 - pa.1).abs());
+                let k = (len / 3).clamp(1, 400);
+                obstacles.extend((0..=k).map(|i| {
+                    let t = f64::from(i) / f64::from(k);
+                    to_px((a.0 + (b.0 - a.0) * t, a.1 + (b.1 - a.1) * t))
+                }));
+            }
+        }
+    }
+    for (y, _) in panel.hlines.iter().filter(|h| ys.contains(h.0)) {
+        let (_, py) = to_px((xs.lo, *y));
+        obstacles.extend((0..=pw / 3).map(|i| (3 * i, py)));
+    }
+    let mut boxes: Vec<Pending> = Vec::with_capacity(pending.len());
+    for t in &pending {
+        let (w, h) = text_box(area, &t.text, &font(style::LABEL_PX, t.colour))?;
+        let candidates = match t.near {
+            Near::Point(p) => around(to_px(p), (w, h), 7),
+            Near::Line { y, left } => {
+                let (_, py) = to_px((xs.lo, y));
+                let (l, r) = (6, pw - 6 - w);
+                let (first, second) = if left { (l, r) } else { (r, l) };
+                vec![
+                    (first, py - 4 - h),
+                    (first, py + 4),
+                    (second, py - 4 - h),
+                    (second, py + 4),
+                ]
+            }
+        };
+        boxes.push(Pending {
+            size: (w, h),
+            candidates,
+        });
+    }
+    let placed = place(&boxes, (pw, ph), &obstacles, &reserved);
+    let text_area = plot.strip_coord_spec();
+    let mut left_out = 0usize;
+    for (t, at) in pending.iter().zip(&placed) {
+        let Some((x, y)) = *at else {
+            left_out += 1;
+            continue;
+        };
+        let style = font(style::LABEL_PX, t.colour).pos(Pos::new(HPos::Left, VPos::Top));
+        text_area
+            .draw(&Text::new(t.text.clone(), (x + 2, y + 1), style))
+            .map_err(err)?;
+    }
+
+    let note = match (note, left_out) {
+        (Some((text, style, at, size)), n) if n > 0 => Some((
+            format!("{text}; {n} label(s) left out for room"),
+            style,
+            at,
+            size,
+        )),
+        (None, n) if n > 0 => {
+            // Rare: the box is full; say so in the quietest corner.
+            let text = format!("{n} label(s) left out for room");
+            let style = font(style::LABEL_PX - 1, &style::MUTED);
+            let size = text_box(area, &text, &style)?;
+            Some((text, style, (6, 6), size))
+        }
+        (note, _) => note,
+    };
+    if let Some((text, style, (x0, y0), (tw, th))) = note {
+        text_area
+            .draw(&Rectangle::new(
+                [(x0 - 3, y0 - 2), (x0 + tw + 3, y0 + th + 2)],
+                WHITE.mix(0.85).filled(),
+            ))
+            .map_err(err)?;
+        text_area
+            .draw(&Text::new(
+                text,
+                (x0 + 2, y0 + 1),
+                style.pos(Pos::new(HPos::Left, VPos::Top)),
             ))
             .map_err(err)?;
     }
@@ -410,6 +495,43 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
             .map_err(err)?;
     }
     Ok(())
+}
+
+/// Where a label belongs: beside a point, or along a horizontal line at
+/// the left or right end.
+#[derive(Debug, Clone, Copy)]
+enum Near {
+    Point((f64, f64)),
+    Line { y: f64, left: bool },
+}
+
+/// A label waiting for its place.
+struct PendingText {
+    text: String,
+    colour: &'static RGBColor,
+    near: Near,
+}
+
+impl PendingText {
+    fn new(text: &str, colour: &'static RGBColor, near: Near) -> Self {
+        PendingText {
+            text: text.to_string(),
+            colour,
+            near,
+        }
+    }
+}
+
+/// The box a text needs, with room for the browser's own face in SVG: at
+/// least one line of the font size high, plus a little air on every side.
+fn text_box<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    text: &str,
+    style: &TextStyle,
+) -> Result<(i32, i32), String> {
+    let (w, h) = area.estimate_text_size(text, style).map_err(err)?;
+    let px = style.font.get_size().ceil() as i32;
+    Ok((w as i32 * 21 / 20 + 4, (h as i32).max(px) + 3))
 }
 
 /// The four corners of the plotting box as `(right, upper)`, quietest first

@@ -5,7 +5,7 @@ use plotters::style::{FontStyle, RGBColor};
 use std::sync::Once;
 
 /// Bundled font so PNG text never depends on fonts installed on the machine.
-static FONT_BYTES: &[u8] = include_bytes!("../fonts/DejaVuSans.ttf");
+pub(crate) static FONT_BYTES: &[u8] = include_bytes!("../fonts/DejaVuSans.ttf");
 
 /// Family name under which the bundled font is registered; SVG viewers fall
 /// back to their own sans-serif face when they render the `<text>` elements.

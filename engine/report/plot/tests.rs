@@ -113,7 +113,7 @@ fn survey_and_fit_png_are_written() {
     survey_sheet_png(&saturation_survey(), &survey).expect("survey png");
     assert!(
         png_ok(&survey) > 20_000,
-        "a 1380×760 sheet with text is not tiny"
+        "a 1050×600 sheet with text is not tiny"
     );
     let fit = dir.join("fit.png");
     fit_sheet_png(&saturation_fit(), &fit).expect("fit png");
