@@ -3,7 +3,8 @@
 //! chosen start can be plugged into any other fitter.
 
 use super::args::{Format, RankArgs};
-use super::prepare::{bind_rows, model_for, read_input};
+use super::prepare::{bind_input, read_input};
+use super::provenance::Run;
 use super::Outcome;
 use crate::auto_start::infer_and_search;
 use crate::error::Error;
@@ -164,6 +165,7 @@ pub fn percent(share: f64) -> String {
 /// Runs `rank`.
 pub fn run_rank(
     args: &RankArgs,
+    run: &Run,
     out: &mut dyn Write,
     err: &mut dyn Write,
 ) -> Result<Outcome, Error> {
@@ -174,15 +176,16 @@ pub fn run_rank(
     }
     let verbose = args.output.verbose;
     let data = read_input(&args.input, verbose, err)?;
-    let (_, model) = model_for(&args.input, &data)?;
-    let bound = bind_rows(model, &data)?;
+    let (_, bound) = bind_input(&args.input, &data)?;
     if !args.output.quiet {
         for w in &bound.context.warnings {
             let _ = writeln!(err, "foothold: warning: {w}");
         }
     }
     let search_clock = std::time::Instant::now();
-    let (_, outcome) = infer_and_search(&bound.problem, &search_options(&args.search.budget))?;
+    let options = search_options(&args.search.budget);
+    let (_, outcome) = infer_and_search(&bound.problem, &options)?;
+    let run = run.searched(&options);
     if verbose {
         let _ = writeln!(
             err,
@@ -208,6 +211,7 @@ pub fn run_rank(
             "candidates_tried": outcome.candidates_tried,
             "minima_found": outcome.minima.len(),
             "candidates": list,
+            "run": run,
         })
     };
     let text = match args.output.format {
@@ -294,7 +298,7 @@ pub fn run_rank(
             s
         }
     };
-    let _ = out.write_all(text.as_bytes());
+    super::output::emit(&text, None, out)?;
     Ok(if outcome.minima.iter().any(|m| m.divergent.is_empty()) {
         Outcome::Success
     } else {
