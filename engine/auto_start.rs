@@ -68,7 +68,9 @@ pub fn scale_from_range(r: &ScanRange, start: f64) -> ParamScale {
     }
 }
 
-/// Inference followed by the ranked multistart search over its candidates.
+/// Inference followed by the ranked multistart search over its candidates;
+/// the search stops early when the inferred start fits to the data's noise
+/// level and further starts keep returning to it (`--starts` is a ceiling).
 pub fn infer_and_search(
     problem: &Problem,
     opts: &SearchOptions,
@@ -84,6 +86,12 @@ pub fn infer_and_search(
         .collect();
     let symmetries = find_symmetries(&problem.model);
     let mut opts = opts.clone();
+    // Stop early once the inferred start fits to the noise level (one
+    // predictor only: with more, the noise read along the first one also holds
+    // the others' effects).
+    if opts.noise_sd.is_none() && problem.x.len() == 1 {
+        opts.noise_sd = Some(inf.features.noise);
+    }
     opts.sign_flips = find_sign_flips(&problem.model);
     opts.signed_swaps = find_signed_swaps(&problem.model);
     let mut outcome = search(
