@@ -10,7 +10,7 @@
 #[path = "common/measure.rs"]
 mod measure;
 
-use foothold::auto_start::starts_for;
+use foothold::auto_start::starts_and_counts;
 use foothold::cli::prepare::run_fit;
 use foothold::fit::problem::Problem;
 use foothold::symbolic::Model;
@@ -52,33 +52,45 @@ fn curve(i: usize) -> (Problem, Vec<f64>) {
     (pr, given)
 }
 
-/// Fits every curve on `threads` threads; (wall s, cpu s, ssr per curve, converged count).
-fn run(curves: &[(Problem, Vec<f64>)], threads: usize, given: bool) -> (f64, f64, Vec<f64>, usize) {
+/// Fits every curve on `threads` threads; (wall s, cpu s, ssr per curve,
+/// converged count, local fits of the search per curve).
+fn run(
+    curves: &[(Problem, Vec<f64>)],
+    threads: usize,
+    given: bool,
+) -> (f64, f64, Vec<f64>, usize, f64) {
     let pool = rayon::ThreadPoolBuilder::new()
         .num_threads(threads)
         .build()
         .expect("pool");
     let (c0, t0) = (cpu_seconds(), Instant::now());
-    let out: Vec<(f64, bool)> = pool.install(|| {
+    let out: Vec<(f64, bool, usize)> = pool.install(|| {
         curves
             .par_iter()
             .map(|(pr, g)| {
-                let start = if given {
-                    g.clone()
+                let (start, tried) = if given {
+                    (g.clone(), 0)
                 } else {
-                    match starts_for(pr) {
-                        Ok(s) => s,
-                        Err(_) => return (f64::INFINITY, false),
+                    match starts_and_counts(pr) {
+                        Ok((s, (tried, _))) => (s, tried),
+                        Err(_) => return (f64::INFINITY, false, 0),
                     }
                 };
                 let (res, _) = run_fit(pr, &start);
-                (res.ssr, res.converged)
+                (res.ssr, res.converged, tried)
             })
             .collect()
     });
     let (wall, cpu) = (t0.elapsed().as_secs_f64(), cpu_seconds() - c0);
     let conv = out.iter().filter(|o| o.1).count();
-    (wall, cpu, out.into_iter().map(|o| o.0).collect(), conv)
+    let tried = out.iter().map(|o| o.2).sum::<usize>() as f64 / curves.len().max(1) as f64;
+    (
+        wall,
+        cpu,
+        out.into_iter().map(|o| o.0).collect(),
+        conv,
+        tried,
+    )
 }
 
 fn main() {
@@ -96,8 +108,8 @@ fn main() {
     for &m in &counts {
         let curves: Vec<(Problem, Vec<f64>)> = (0..m).map(curve).collect();
         for threads in [1, 2] {
-            let (w0, c0, s0, k0) = run(&curves, threads, false);
-            let (w1, c1, s1, k1) = run(&curves, threads, true);
+            let (w0, c0, s0, k0, fits) = run(&curves, threads, false);
+            let (w1, c1, s1, k1, _) = run(&curves, threads, true);
             // "at best": converged to within 1e-6 (relative) of the lower ssr of the two ways
             let best: Vec<f64> = s0.iter().zip(&s1).map(|(a, b)| a.min(*b)).collect();
             let at = |s: &[f64]| {
@@ -118,6 +130,10 @@ fn main() {
                     format!("{}/{m} ({k} conv.)", at(s))
                 );
             }
+            println!(
+                "{:>7} no starts: {fits:.1} local fits of the search per curve",
+                m
+            );
             println!(
                 "{:>7} ratio no-starts / with-starts ({} thread{}): wall {:.1}x, cpu {:.1}x",
                 m,

@@ -2,6 +2,9 @@
 //! this process (Linux /proc), a seeded invented-data generator, and the growth
 //! exponent between two sizes.
 
+// Each benchmark uses a part of these helpers.
+#![allow(dead_code)]
+
 /// CPU seconds (user + system) used by this process so far, from
 /// /proc/self/stat (clock ticks of 1/100 s); NaN where unreadable.
 pub fn cpu_seconds() -> f64 {
