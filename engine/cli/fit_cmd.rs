@@ -55,9 +55,18 @@ pub fn run_fit(
         None => run.clone(),
     };
     if let (true, Some((tried, minima))) = (verbose, searched) {
+        let opts = super::rank_cmd::search_options(&args.search);
+        let why = if tried >= opts.starts {
+            "every start tried"
+        } else if opts.time_limit.is_some() {
+            "stopped early (settled, or the time limit)"
+        } else {
+            crate::search::SearchStop::Settled.words()
+        };
         let _ = writeln!(
             err,
-            "foothold: starting values inferred; search: {tried} starts tried, {minima} distinct minima, {:.1} ms",
+            "foothold: starting values inferred; search: {tried} starts tried of at most {}, {minima} distinct minima, {:.1} ms; stopped: {why}",
+            opts.starts,
             search_clock.elapsed().as_secs_f64() * 1e3
         );
     }

@@ -192,11 +192,7 @@ pub fn run_rank(
             "foothold: search: {} starts tried, {} distinct minima; stopped: {}; {:.1} ms",
             outcome.candidates_tried,
             outcome.minima.len(),
-            if outcome.stopped_by_time {
-                "time limit"
-            } else {
-                "every start tried"
-            },
+            outcome.stop.words(),
             search_clock.elapsed().as_secs_f64() * 1e3
         );
     }
@@ -209,6 +205,7 @@ pub fn run_rank(
             "data": bound.context.data,
             "response": bound.context.response,
             "candidates_tried": outcome.candidates_tried,
+            "search_stop": outcome.stop,
             "minima_found": outcome.minima.len(),
             "candidates": list,
             "run": run,
@@ -243,10 +240,11 @@ pub fn run_rank(
         }
         Format::Table => {
             let mut s = format!(
-                "model   {}\nsearch  {} local fits, {} distinct minima\n",
+                "model   {}\nsearch  {} local fits, {} distinct minima; stopped: {}\n",
                 bound.problem.model.text,
                 outcome.candidates_tried,
-                outcome.minima.len()
+                outcome.minima.len(),
+                outcome.stop.words()
             );
             for c in &list {
                 let g = |v: Option<f64>| {

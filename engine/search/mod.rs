@@ -10,6 +10,7 @@
 //! only between batches; with one set, how many batches run depends on the
 //! machine's speed, and so may the outcome.
 
+pub mod adaptive;
 pub mod candidates;
 pub mod cluster;
 pub mod outcome;
@@ -23,6 +24,7 @@ pub mod symmetry;
 #[cfg(test)]
 mod tests;
 
+pub use adaptive::SearchStop;
 pub use candidates::{find_symmetries, Candidate, Origin};
 pub use outcome::{Minimum, Run, SearchOutcome, Valley};
 pub use scale::{ParamScale, SignFreedom};
@@ -38,8 +40,13 @@ use std::time::{Duration, Instant};
 /// Budgets and settings of a search.
 #[derive(Debug, Clone)]
 pub struct SearchOptions {
-    /// Number of local fits (candidate starts), inferred starts included.
+    /// Most local fits (candidate starts), inferred starts included: a
+    /// ceiling, not a quota, when `noise_sd` is set (see [`adaptive`]).
     pub starts: usize,
+    /// Noise standard deviation of the response, when known: the search may
+    /// then stop early once the inferred start fits to this level and further
+    /// starts keep returning to its minimum ([`adaptive::settled`]).
+    pub noise_sd: Option<f64>,
     /// Seed of the quasi-random points: same seed, same outcome.
     pub seed: u64,
     /// Wall-time limit, checked only between batches (makes results speed-dependent).
@@ -70,6 +77,7 @@ impl Default for SearchOptions {
     fn default() -> Self {
         SearchOptions {
             starts: 64,
+            noise_sd: None,
             seed: 0x00F0_07E0_1D5E_ED00,
             time_limit: None,
             top: 0,
@@ -168,12 +176,24 @@ pub fn search(
     };
     let mut basins = Basins::default();
     let mut done: Vec<(Refined, bool)> = Vec::new();
-    let mut stopped_by_time = false;
-    for (b, chunk) in cands.chunks(batch).enumerate() {
+    let mut stop = SearchStop::EveryStartTried;
+    let noise_sd = opts.noise_sd.filter(|s| s.is_finite() && *s > 0.0);
+    for (b, range) in adaptive::chunks(cands.len(), batch, noise_sd.is_some())
+        .into_iter()
+        .enumerate()
+    {
         if b > 0 && opts.time_limit.is_some_and(|t| clock.elapsed() >= t) {
-            stopped_by_time = true;
+            stop = SearchStop::TimeLimit;
             break;
         }
+        if let Some(sd) = noise_sd {
+            if b > 0 && adaptive::settled(&basins, sd, problem.n_obs(), n) {
+                stop = SearchStop::Settled;
+                break;
+            }
+        }
+        let full = range.start < batch;
+        let chunk = &cands[range];
         let known: Vec<KnownMinimum> = basins
             .list
             .iter()
@@ -185,7 +205,6 @@ pub fn search(
                 divergent: k.divergent.clone(),
             })
             .collect();
-        let full = b == 0;
         let results: Vec<Refined> = chunk
             .par_iter()
             .map(|c| {
@@ -348,7 +367,8 @@ pub fn search(
         names: names.to_vec(),
         minima: ranked,
         candidates_tried: total,
-        stopped_by_time,
+        stopped_by_time: stop == SearchStop::TimeLimit,
+        stop,
         runs,
     }
 }

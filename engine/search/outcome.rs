@@ -113,6 +113,8 @@ pub struct SearchOutcome {
     pub candidates_tried: usize,
     /// True when the time limit ended the search before every candidate was tried.
     pub stopped_by_time: bool,
+    /// Why the search ended (every start tried, time limit, or settled early).
+    pub stop: super::SearchStop,
     /// Every local run, in candidate order.
     pub runs: Vec<Run>,
 }
