@@ -3,7 +3,7 @@
 
 use super::args::{Format, ModelsArgs};
 use super::Outcome;
-use foothold::error::Error;
+use crate::cli::error::Error;
 use foothold::library::library;
 use foothold_report::formats::{aligned_table, csv_line, to_json, to_yaml, Align};
 use serde::Serialize;
@@ -45,6 +45,6 @@ pub fn run_models(args: &ModelsArgs, out: &mut dyn Write) -> Result<Outcome, Err
             t
         }
     };
-    let _ = out.write_all(text.as_bytes());
+    super::output::emit(&text, None, out)?;
     Ok(Outcome::Success)
 }

@@ -6,7 +6,7 @@ use super::args::InputArgs;
 use super::model_arg::{bind_model, resolve_model, ModelSpec};
 use foothold::data::{is_column_spec, match_columns, read_table_noted, stack_columns};
 use foothold::data::{DataError, Dataset, DecimalMark, ReadNotes, ReadOptions};
-use foothold::error::Error;
+use crate::cli::error::Error;
 use foothold::symbolic::Model;
 use std::io::Write;
 
@@ -135,7 +135,7 @@ fn layout_note(notes: &ReadNotes) -> String {
 /// The name of the pooled response: the formula's left-hand side when it
 /// names one column not in the table (or among the stacked ones), else `y`.
 fn response_name(input: &InputArgs, data: &Dataset, stacked: &[String]) -> String {
-    let Ok(spec) = resolve_model(&input.model, input.x.as_deref()) else {
+    let Ok(spec) = resolve_model(&input.model, input.x.as_deref(), &data.columns) else {
         return "y".into();
     };
     let Some(lhs) = &spec.parsed.lhs else {
@@ -173,7 +173,7 @@ pub fn model_for(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Model)
     if let Some(x) = &input.x {
         check_column(data, "--x", x)?;
     }
-    let spec = resolve_model(&input.model, input.x.as_deref())?;
+    let spec = resolve_model(&input.model, input.x.as_deref(), &data.columns)?;
     let model = bind_model(&spec, data, input.y.as_deref())?;
     if let Some(y) = &input.y {
         if model.lhs.is_some() && model.response != *y {
@@ -185,3 +185,14 @@ pub fn model_for(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Model)
     }
     Ok((spec, model))
 }
+
+/// Resolves the model of the input arguments and binds it to the rows it can
+/// use ([`model_for`], then [`bind_rows`]); the model's notes (a column that
+/// hides a constant) join the data's warnings.
+pub fn bind_input(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Bound), Error> {
+    let (spec, model) = model_for(input, data)?;
+    let mut bound = bind_rows(model, data)?;
+    bound.context.warnings.extend(spec.notes.iter().cloned());
+    Ok((spec, bound))
+}
+
