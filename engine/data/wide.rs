@@ -195,7 +195,8 @@ pub fn stack_columns(
             path: data.source.clone(),
             column: label.to_string(),
         };
-        out.text.push(b.finish(label, first, (0, out.columns.len() - 1)));
+        out.text
+            .push(b.finish(label, first, (0, out.columns.len() - 1)));
     }
     Ok(Stacked {
         empty_cells: n * stacked.len() - cells.len(),
@@ -234,7 +235,10 @@ mod tests {
         );
         let e = m("rep1..rep4").unwrap_err();
         assert!(matches!(&e, DataError::UnknownColumn { name, .. } if name == "rep4"));
-        assert!(matches!(m("rep1,rep9").unwrap_err(), DataError::UnknownColumn { .. }));
+        assert!(matches!(
+            m("rep1,rep9").unwrap_err(),
+            DataError::UnknownColumn { .. }
+        ));
         assert!(glob("S*1", "S11") && glob("*", "") && !glob("S?", "S10"));
         assert_eq!(
             range_names("S08..S10", 100).unwrap(),
