@@ -573,7 +573,7 @@ fn matrix() -> Vec<Case> {
             GOOD,
             m2,
             &["--start", "a=1", "--start", "a=2,k=1"],
-            &["'a' more than once"],
+            &["'a' is given more than once"],
         ),
         fit(
             "--start value not a number",
@@ -608,7 +608,7 @@ fn matrix() -> Vec<Case> {
             GOOD,
             m2,
             &["--start", "a=1"],
-            &["no value for k", "(parameters: a, k)"],
+            &["no starting value for k", "(parameters: a, k)"],
         ),
         fit(
             "--start item not NAME=VALUE",

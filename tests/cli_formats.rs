@@ -225,12 +225,12 @@ fn out_writes_a_complete_file_and_no_temporary() {
         .collect();
     names.sort();
     assert_eq!(names, vec!["fit.yaml", "logistic.csv"]);
-    // A directory that does not exist: exit 2, nothing written.
+    // A directory that does not exist: exit 3 (cannot write), nothing written.
     let bad = d.join("nowhere/fit.yaml");
     let mut args = fit_args(data.to_str().unwrap(), "json");
     args.extend(["--out", bad.to_str().unwrap()]);
     let (code, _, err) = run(&args);
-    assert_eq!(code, 2, "{err}");
+    assert_eq!(code, 3, "{err}");
     assert!(err.contains("cannot write"), "{err}");
     let _ = std::fs::remove_dir_all(&d);
 }

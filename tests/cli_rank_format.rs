@@ -166,6 +166,7 @@ fn flat_valley_is_reported_once() {
             p.to_str().unwrap().to_string(),
             "--model".into(),
             "a*exp(-r*x)+c".into(),
+            "--every-start".into(),
             "--top".into(),
             "20".into(),
             "--format".into(),

@@ -122,7 +122,7 @@ fn batch_report_holds_the_table_the_overlay_and_the_caution() {
     assert!(html.contains("safety-critical"), "caution present");
     // The model box shows the full model with its response.
     assert!(
-        html.contains("<code class=\"formula\">response = asym/(1 + exp(-r*(log_dose - xmid)))</code>"),
+        html.contains("<code class=\"formula\">response = plateau/(1 + exp(-rate*(log_dose - x_half)))</code>"),
         "model box with the response"
     );
     // Every compound has a row and appears in the overlay's legend.
@@ -268,7 +268,7 @@ fn log_x_views_are_left_out_when_x_has_negative_values() {
         "--y",
         "response",
         "--start",
-        "asym=90,xmid=-0.5,r=2",
+        "plateau=90,x_half=-0.5,rate=2",
     ]);
     assert_eq!(code, 0, "{err}");
     let survey = between(&out, "Survey of the data", "Fit");

@@ -116,6 +116,10 @@ pub struct SearchBudget {
     /// Stop the search after this many seconds (results then depend on speed).
     #[arg(long, value_name = "SECONDS")]
     pub time_limit: Option<f64>,
+    /// Run every start up to --starts, even once the search has settled on the
+    /// inferred start's minimum (by default it stops early then).
+    #[arg(long)]
+    pub every_start: bool,
 }
 
 /// Options of the multistart search, shared by `rank` and `report`.

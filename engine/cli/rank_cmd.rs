@@ -110,6 +110,7 @@ pub fn search_options(args: &super::args::SearchBudget) -> SearchOptions {
     if let Some(s) = args.seed {
         o.seed = s;
     }
+    o.early_stop = !args.every_start;
     if let Some(t) = args.time_limit.filter(|t| t.is_finite() && *t > 0.0) {
         o.time_limit = Some(std::time::Duration::from_secs_f64(t));
     }

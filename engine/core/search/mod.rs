@@ -47,6 +47,9 @@ pub struct SearchOptions {
     /// then stop early once the inferred start fits to this level and further
     /// starts keep returning to its minimum ([`adaptive::settled`]).
     pub noise_sd: Option<f64>,
+    /// Whether the search may stop early once settled (see `noise_sd`); false
+    /// runs every start up to `starts`, e.g. to map every basin.
+    pub early_stop: bool,
     /// Seed of the quasi-random points: same seed, same outcome.
     pub seed: u64,
     /// Wall-time limit, checked only between batches (makes results speed-dependent).
@@ -78,6 +81,7 @@ impl Default for SearchOptions {
         SearchOptions {
             starts: 64,
             noise_sd: None,
+            early_stop: true,
             seed: 0x00F0_07E0_1D5E_ED00,
             time_limit: None,
             top: 0,
@@ -177,7 +181,9 @@ pub fn search(
     let mut basins = Basins::default();
     let mut done: Vec<(Refined, bool)> = Vec::new();
     let mut stop = SearchStop::EveryStartTried;
-    let noise_sd = opts.noise_sd.filter(|s| s.is_finite() && *s > 0.0);
+    let noise_sd = opts
+        .noise_sd
+        .filter(|s| opts.early_stop && s.is_finite() && *s > 0.0);
     for (b, range) in adaptive::chunks(cands.len(), batch, noise_sd.is_some())
         .into_iter()
         .enumerate()
