@@ -11,8 +11,8 @@
 mod measure;
 
 use foothold::auto_start::starts_and_counts;
-use foothold::pipeline::run_fit;
 use foothold::fit::problem::Problem;
+use foothold::pipeline::run_fit;
 use foothold::symbolic::Model;
 use measure::{cpu_seconds, Rng};
 use rayon::prelude::*;

@@ -9,9 +9,9 @@
 mod measure;
 
 use foothold::auto_start::starts_for;
-use foothold::pipeline::run_fit;
 use foothold::fit::problem::Problem;
 use foothold::infer::{infer, InferOptions};
+use foothold::pipeline::run_fit;
 use foothold::symbolic::Model;
 use measure::{cpu_seconds, exponent, peak_mb, Rng};
 use std::process::Command;

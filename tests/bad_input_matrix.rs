@@ -289,21 +289,33 @@ fn matrix() -> Vec<Case> {
             b"x\ty\n1\t2,5\n2\t3,5\n",
             "a*x",
             &[],
-            &["{file}", "line 2", "column 'y'", "'2,5' is not a number", "try --decimal ,"],
+            &[
+                "{file}",
+                "line 2",
+                "column 'y'",
+                "'2,5' is not a number",
+                "try --decimal ,",
+            ],
         ),
         fit(
             "--decimal , with a comma delimiter",
             GOOD,
             "a*x",
             &["--decimal", ","],
-            &["{file}", "the comma cannot be both the delimiter and the decimal mark"],
+            &[
+                "{file}",
+                "the comma cannot be both the delimiter and the decimal mark",
+            ],
         ),
         fit(
             "--y pattern matching no column",
             b"dose,rep1,rep2\n1,2,3\n2,4,5\n",
             "a*x",
             &["--x", "dose", "--y", "S*"],
-            &["--y 'S*' matches no column of {file}", "columns: dose, rep1, rep2"],
+            &[
+                "--y 'S*' matches no column of {file}",
+                "columns: dose, rep1, rep2",
+            ],
         ),
         fit(
             "--wide-groups range past the last column",
@@ -317,7 +329,11 @@ fn matrix() -> Vec<Case> {
             GOOD,
             "a*x",
             &["--header-row", "9"],
-            &["{file}", "--header-row 9 is past the end of the table", "last row is 5"],
+            &[
+                "{file}",
+                "--header-row 9 is past the end of the table",
+                "last row is 5",
+            ],
         ),
         fit(
             "--header-row on a blank line",

@@ -111,7 +111,10 @@ fn a_failing_group_does_not_stop_the_others() {
     assert!(groups[1]["parameters"][0]["estimate"].is_null());
     // The failed group had two rows: its row count says so.
     assert_eq!(groups[1]["n_obs"], 2);
-    assert!(groups.iter().all(|g| g.get("group").is_none()), "keyed by --by");
+    assert!(
+        groups.iter().all(|g| g.get("group").is_none()),
+        "keyed by --by"
+    );
     for (g, a, k) in [(0, 10.0, 0.3), (2, 4.0, 0.8)] {
         assert_eq!(groups[g]["status"], "converged");
         assert_eq!(groups[g]["n_obs"], 12);

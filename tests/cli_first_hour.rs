@@ -18,12 +18,18 @@ fn help_says_starts_are_optional_and_lists_only_readable_formats() {
         let (code, out, _) = run(&[command, "--help"]);
         assert_eq!(code, 0);
         assert!(out.contains("Optional starting values"), "{command}: {out}");
-        assert!(out.contains("Without --start they are worked out"), "{command}: {out}");
+        assert!(
+            out.contains("Without --start they are worked out"),
+            "{command}: {out}"
+        );
     }
     for command in ["fit", "infer", "rank", "report"] {
         let (_, out, _) = run(&[command, "--help"]);
         assert!(out.contains(".xlsx"), "{command}: {out}");
-        assert!(!out.contains(".ods"), "{command} lists .ods, which is refused: {out}");
+        assert!(
+            !out.contains(".ods"),
+            "{command} lists .ods, which is refused: {out}"
+        );
     }
 }
 
@@ -60,7 +66,10 @@ fn a_tilde_is_answered_with_a_hint_to_write_equals() {
     let lines: Vec<&str> = err.lines().collect();
     assert_eq!(lines.len(), 3, "error, formula, caret: {err}");
     assert!(lines[0].contains("unexpected character '~'"), "{err}");
-    assert!(lines[0].contains("write '=', as in 'y = a*exp(-k*x)'"), "{err}");
+    assert!(
+        lines[0].contains("write '=', as in 'y = a*exp(-k*x)'"),
+        "{err}"
+    );
     assert!(lines[0].contains("at character 3"), "{err}");
     assert_eq!(lines[2], "    ^");
 }
@@ -69,13 +78,30 @@ fn a_tilde_is_answered_with_a_hint_to_write_equals() {
 fn a_formula_may_start_with_a_minus() {
     let data = scratch_file("minus", LINE);
     for args in [
-        vec!["fit", data.to_str().unwrap(), "--model", "-a*x + b", "--format", "csv"],
-        vec!["fit", data.to_str().unwrap(), "-m", "-a*x + b", "--format", "csv"],
+        vec![
+            "fit",
+            data.to_str().unwrap(),
+            "--model",
+            "-a*x + b",
+            "--format",
+            "csv",
+        ],
+        vec![
+            "fit",
+            data.to_str().unwrap(),
+            "-m",
+            "-a*x + b",
+            "--format",
+            "csv",
+        ],
     ] {
         let (code, out, err) = run(&args);
         assert_eq!(code, 0, "{args:?}: {err}");
         let est = |name: &str| -> f64 {
-            let line = out.lines().find(|l| l.starts_with(&format!("{name},"))).unwrap();
+            let line = out
+                .lines()
+                .find(|l| l.starts_with(&format!("{name},")))
+                .unwrap();
             line.split(',').nth(1).unwrap().parse().unwrap()
         };
         assert!((est("a") + 2.0).abs() < 1e-9, "{out}");
@@ -98,15 +124,24 @@ fn columns_named_e_and_pi_are_columns_with_a_note() {
     assert_eq!(v["response"], "e");
     let est = |i: usize| v["parameters"][i]["estimate"].as_f64().unwrap();
     assert_eq!(v["parameters"][0]["name"], "a");
-    assert!((est(0) - 3.0).abs() < 1e-9 && (est(1) - 1.0).abs() < 1e-9, "{out}");
+    assert!(
+        (est(0) - 3.0).abs() < 1e-9 && (est(1) - 1.0).abs() < 1e-9,
+        "{out}"
+    );
     let notes: Vec<&str> = err.lines().collect();
     assert_eq!(notes.len(), 2, "one note per constant hidden: {err}");
     assert!(
         notes[0].starts_with("foothold: warning: 'pi' in the formula is the data column 'pi', not the constant pi = 3.141593"),
         "{err}"
     );
-    assert!(notes[0].ends_with("write 4*atan(1) for the constant"), "{err}");
-    assert!(notes[1].contains("'e' in the formula is the data column 'e'"), "{err}");
+    assert!(
+        notes[0].ends_with("write 4*atan(1) for the constant"),
+        "{err}"
+    );
+    assert!(
+        notes[1].contains("'e' in the formula is the data column 'e'"),
+        "{err}"
+    );
     assert!(notes[1].ends_with("write exp(1) for the constant"), "{err}");
     let warnings = v["warnings"].as_array().unwrap();
     assert_eq!(warnings.len(), 2, "the notes are in the document: {out}");
@@ -125,6 +160,14 @@ fn columns_named_e_and_pi_are_columns_with_a_note() {
     ]);
     assert_eq!(code, 0, "{err}");
     assert_eq!(err, "", "no note without such a column");
-    let a: f64 = out.lines().nth(1).unwrap().split(',').nth(1).unwrap().parse().unwrap();
+    let a: f64 = out
+        .lines()
+        .nth(1)
+        .unwrap()
+        .split(',')
+        .nth(1)
+        .unwrap()
+        .parse()
+        .unwrap();
     assert!((a - 2.0 / std::f64::consts::PI).abs() < 1e-9, "{out}");
 }

@@ -316,7 +316,10 @@ fn every_document_records_its_run() {
     let model = "temp = ambient + delta*exp(-k*minutes)";
     let data = "demo-data/part_cooling.csv";
     let cases: Vec<(Vec<&str>, bool)> = vec![
-        (vec!["fit", data, "--model", model, "--format", "json"], true),
+        (
+            vec!["fit", data, "--model", model, "--format", "json"],
+            true,
+        ),
         (
             vec![
                 "fit",
@@ -330,9 +333,14 @@ fn every_document_records_its_run() {
             ],
             false,
         ),
-        (vec!["infer", data, "--model", model, "--format", "json"], false),
         (
-            vec!["rank", data, "--model", model, "--seed", "7", "--starts", "12", "--format", "json"],
+            vec!["infer", data, "--model", model, "--format", "json"],
+            false,
+        ),
+        (
+            vec![
+                "rank", data, "--model", model, "--seed", "7", "--starts", "12", "--format", "json",
+            ],
             true,
         ),
     ];

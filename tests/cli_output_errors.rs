@@ -128,11 +128,7 @@ fn with_reader_closed_after(args: &[&str], lines: usize) -> (i32, Vec<String>, S
     }
     drop(reader);
     let status = child.wait().unwrap();
-    (
-        status.code().unwrap_or(-1),
-        got,
-        err_reader.join().unwrap(),
-    )
+    (status.code().unwrap_or(-1), got, err_reader.join().unwrap())
 }
 
 #[test]
@@ -193,7 +189,10 @@ fn a_failed_write_leaves_no_temporary_file_and_keeps_the_old_one() {
     let lines: Vec<&str> = err.lines().collect();
     assert_eq!(lines.len(), 1, "{err}");
     assert!(
-        lines[0].starts_with(&format!("foothold: error: cannot write {}: ", page.display())),
+        lines[0].starts_with(&format!(
+            "foothold: error: cannot write {}: ",
+            page.display()
+        )),
         "{err}"
     );
     assert!(lines[0].contains("too large"), "EFBIG: {err}");

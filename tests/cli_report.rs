@@ -276,9 +276,16 @@ fn log_x_views_are_left_out_when_x_has_negative_values() {
         survey.contains("<p class=\"note\">The views against log log_dose are left out: "),
         "{survey:.600}"
     );
-    assert!(survey.contains("values of log_dose are negative"), "{survey:.600}");
+    assert!(
+        survey.contains("values of log_dose are negative"),
+        "{survey:.600}"
+    );
     // Three views remain, none against log log_dose, in the plot or the table.
-    for t in ["response against log_dose", "1/response against log_dose", "ln response against log_dose"] {
+    for t in [
+        "response against log_dose",
+        "1/response against log_dose",
+        "ln response against log_dose",
+    ] {
         assert!(survey.contains(&format!("\n{t}\n</text>")), "panel {t}");
     }
     assert_eq!(
@@ -303,10 +310,15 @@ fn features_not_used_for_the_starts_are_folded_away() {
     let fold = feats.find("<details").expect("a details element");
     let (front, folded) = feats.split_at(fold);
     // Starts given: the note says so; the shape of temp against minutes is up front.
-    assert!(front.contains("given on the command line, so none was read from a feature"), "{front}");
+    assert!(
+        front.contains("given on the command line, so none was read from a feature"),
+        "{front}"
+    );
     let up_front = front.matches("<tr><td>").count();
     assert_eq!(up_front, 3, "direction, plateau and intercept: {front}");
-    assert!(front.contains("<td>temp against minutes</td><td>high-end plateau</td><td class=\"num\">24.3</td>"));
+    assert!(front.contains(
+        "<td>temp against minutes</td><td>high-end plateau</td><td class=\"num\">24.3</td>"
+    ));
     // Everything else is inside the details element, with a count in its summary.
     let inside = folded.matches("<tr><td>").count();
     let summary = format!("<summary>{inside} other features found in the views</summary>");
@@ -333,8 +345,13 @@ fn figures_fit_the_text_column() {
     ]);
     assert_eq!(code, 0, "{err}");
     assert!(out.contains("figure { margin: .5rem 0 1rem; max-width: 100%; }"));
-    assert!(out.contains("figure svg { display: block; width: 100%; max-width: 100%; height: auto;"));
-    assert!(!out.contains("100vw") && !out.contains("translateX"), "no figure wider than the column");
+    assert!(
+        out.contains("figure svg { display: block; width: 100%; max-width: 100%; height: auto;")
+    );
+    assert!(
+        !out.contains("100vw") && !out.contains("translateX"),
+        "no figure wider than the column"
+    );
     // The single page's model box names the response too.
     assert!(out.contains("<code class=\"formula\">temp = c + a*exp(-k*minutes)</code>"));
 }
@@ -376,22 +393,38 @@ fn many_groups_get_panels_on_a_common_y_scale_failed_first() {
     assert_eq!(code, 1, "one group failed: {err}");
     let html = std::fs::read_to_string(&html_path).unwrap();
     // The model box shows the response.
-    assert!(html.contains("<code class=\"formula\">y = a*exp(-k*x)</code>"), "model box");
+    assert!(
+        html.contains("<code class=\"formula\">y = a*exp(-k*x)</code>"),
+        "model box"
+    );
     // 15 groups: no overlay chart, a note instead, and one grid of 15 panels.
     let all = between(&html, "All groups", "Each group");
     assert!(!all.contains("<svg"), "no crowded overlay");
-    assert!(all.contains("15 groups are too many to tell apart on one chart (at most 12)"), "{all}");
+    assert!(
+        all.contains("15 groups are too many to tell apart on one chart (at most 12)"),
+        "{all}"
+    );
     let grid = between(&html, "Each group", "Warnings");
     assert_eq!(grid.matches("<svg").count(), 1);
     // The failed group's panel comes first, then W01 … W14 in order.
     let titles: Vec<usize> = std::iter::once("Z9 (failed)".to_string())
         .chain((1..=14).map(|g| format!("W{g:02}")))
-        .map(|t| grid.find(&format!("\n{t}\n</text>")).unwrap_or_else(|| panic!("panel {t}")))
+        .map(|t| {
+            grid.find(&format!("\n{t}\n</text>"))
+                .unwrap_or_else(|| panic!("panel {t}"))
+        })
         .collect();
-    assert!(titles.windows(2).all(|w| w[0] < w[1]), "panel order {titles:?}");
+    assert!(
+        titles.windows(2).all(|w| w[0] < w[1]),
+        "panel order {titles:?}"
+    );
     // A common y scale: y runs from 0.9 to 23 over all groups, so every panel,
     // even W01's (y ≤ 10), carries the same top tick label 20.
-    assert_eq!(grid.matches("\n20\n</text>").count(), 15, "a shared top tick in each panel");
+    assert_eq!(
+        grid.matches("\n20\n</text>").count(),
+        15,
+        "a shared top tick in each panel"
+    );
     // The failed row stands out: its class is styled in red on the page.
     assert!(html.contains("<tr class=\"failed\"><td>Z9</td><td>failed</td>"));
     assert!(html.contains("table.groups tbody tr.failed td:nth-child(2) { color: #b3261e;"));
@@ -603,6 +636,10 @@ fn pages_end_with_the_run_line() {
         env!("CARGO_PKG_VERSION"),
         page.display()
     );
-    assert!(html.contains(&want), "{}", &html[html.len().saturating_sub(600)..]);
+    assert!(
+        html.contains(&want),
+        "{}",
+        &html[html.len().saturating_sub(600)..]
+    );
     let _ = std::fs::remove_dir_all(&d);
 }

@@ -57,7 +57,10 @@ fn under_terminal(args: &[&str]) -> (i32, String) {
         if clock.elapsed() > WATCHDOG {
             let _ = child.kill();
             let _ = child.wait();
-            panic!("`foothold {}` still running after {WATCHDOG:?} under a terminal: killed", args.join(" "));
+            panic!(
+                "`foothold {}` still running after {WATCHDOG:?} under a terminal: killed",
+                args.join(" ")
+            );
         }
         std::thread::sleep(Duration::from_millis(20));
     };

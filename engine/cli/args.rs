@@ -1,8 +1,8 @@
 //! The command line's shape (clap 4 derive): one struct per subcommand, built
 //! from shared groups so that later commands extend them easily.
 
-use foothold::data::{parse_decimal, parse_separator, DecimalMark, Separator};
 use clap::{Args, Parser, Subcommand, ValueEnum};
+use foothold::data::{parse_decimal, parse_separator, DecimalMark, Separator};
 use std::path::PathBuf;
 
 /// foothold: starting values for nonlinear regression, ranked multistart, converged fits.
@@ -41,7 +41,12 @@ pub struct InputArgs {
     /// Model formula, e.g. "y = a*exp(-k*x)" (names that are columns are
     /// variables, all other names are parameters), or the name of a library
     /// model, e.g. michaelis-menten (see `foothold models`). A formula may start with '-'.
-    #[arg(long, short = 'm', value_name = "FORMULA|NAME", allow_hyphen_values = true)]
+    #[arg(
+        long,
+        short = 'm',
+        value_name = "FORMULA|NAME",
+        allow_hyphen_values = true
+    )]
     pub model: String,
     /// Data column for the model's variable `x` (library models are written in x).
     #[arg(long = "x", value_name = "COLUMN")]

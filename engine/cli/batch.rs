@@ -11,15 +11,15 @@ use super::prepare::{bind_rows, model_for, run_fit, starting_values_searched, st
 use super::provenance::Run;
 use super::rank_cmd::search_options;
 use super::Outcome;
-use foothold::data::Dataset;
 use crate::cli::error::Error;
+use foothold::data::Dataset;
 use foothold::fit::problem::Problem;
+use foothold::search::SearchOptions;
+use foothold::symbolic::Model;
 use foothold_report::fit_table::{format_number, SIGNIFICANT};
 use foothold_report::formats::{
     aligned_table, csv_line, csv_number, identifiable_cell, to_json, to_yaml, Align,
 };
-use foothold::search::SearchOptions;
-use foothold::symbolic::Model;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
 use serde::ser::{SerializeMap, Serializer};
@@ -152,7 +152,13 @@ impl BatchDoc {
 /// `--by` column with one of these names would be ambiguous.
 fn summary_names(params: &[String]) -> Vec<String> {
     let mut names: Vec<String> = [
-        "status", "rows", "n_obs", "iterations", "ssr", "parameters", "message",
+        "status",
+        "rows",
+        "n_obs",
+        "iterations",
+        "ssr",
+        "parameters",
+        "message",
     ]
     .iter()
     .map(|s| s.to_string())
@@ -297,7 +303,11 @@ fn complete_rows(model: &Model, data: &Dataset) -> usize {
         .filter_map(|c| data.column(c))
         .collect();
     (0..data.n_rows())
-        .filter(|&i| columns.iter().all(|c| c.get(i).is_some_and(|v| v.is_finite())))
+        .filter(|&i| {
+            columns
+                .iter()
+                .all(|c| c.get(i).is_some_and(|v| v.is_finite()))
+        })
         .count()
 }
 
@@ -606,21 +616,18 @@ pub fn run_batch(
         groups: rows,
         warnings,
     };
-    let text = match args.output.format {
-        Format::Table => batch_table(&doc, &model.params),
-        Format::Csv => batch_csv(&doc, &model.params),
-        Format::Json => {
-            to_json(&doc.out(&run)).map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
-        }
-        Format::Yaml => {
-            to_yaml(&doc.out(&run)).map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
-        }
-    };
+    let text =
+        match args.output.format {
+            Format::Table => batch_table(&doc, &model.params),
+            Format::Csv => batch_csv(&doc, &model.params),
+            Format::Json => to_json(&doc.out(&run))
+                .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?,
+            Format::Yaml => to_yaml(&doc.out(&run))
+                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?,
+        };
     emit(&text, args.out.as_deref(), out)?;
-    let unfinished = unfinished_summary(
-        doc.groups.iter().map(|r| (r.group.as_str(), r.status)),
-        &by,
-    );
+    let unfinished =
+        unfinished_summary(doc.groups.iter().map(|r| (r.group.as_str(), r.status)), &by);
     Ok(unfinished.map_or(Outcome::Success, Outcome::NotConverged))
 }
 
@@ -787,7 +794,12 @@ mod tests {
     #[test]
     fn unfinished_groups_are_told_apart() {
         use GroupStatus::*;
-        let g = [("A", Failed), ("B", Converged), ("C", NotConverged), ("D", Failed)];
+        let g = [
+            ("A", Failed),
+            ("B", Converged),
+            ("C", NotConverged),
+            ("D", Failed),
+        ];
         assert_eq!(
             unfinished_summary(g, "well").unwrap(),
             "2 of 4 groups failed (well = A, D) and 1 did not converge (well = C)"
@@ -805,7 +817,9 @@ mod tests {
         let (g, _) = groups_of(&[0.0, -0.0, 1.0]);
         assert_eq!(g.len(), 2);
         assert_eq!(g[0].1, vec![0, 1]);
-        let col: Vec<f64> = (0..100_000).map(|i| ((i % 50_000) * 7 % 50_000) as f64).collect();
+        let col: Vec<f64> = (0..100_000)
+            .map(|i| ((i % 50_000) * 7 % 50_000) as f64)
+            .collect();
         let (g, missing) = groups_of(&col);
         assert_eq!((g.len(), missing), (50_000, 0));
         assert_eq!(g[1].0, 7.0);

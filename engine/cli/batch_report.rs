@@ -11,8 +11,9 @@ use super::prepare::starts_given;
 use super::provenance::Run;
 use super::report_cmd::report_date;
 use super::Outcome;
-use foothold::data::Dataset;
 use crate::cli::error::Error;
+use foothold::data::Dataset;
+use foothold::symbolic::Model;
 use foothold_report::assemble::fit_sheet;
 use foothold_report::batch_html::{render_batch_report, BatchGroupRow, BatchReportInput};
 use foothold_report::html::formula_with_response;
@@ -20,7 +21,6 @@ use foothold_report::plot::{
     common_y_range, group_grid_svg, group_panel, overlay_svg, GroupSeries, Overlay,
     MAX_OVERLAY_GROUPS,
 };
-use foothold::symbolic::Model;
 use std::io::Write;
 
 /// Most groups drawn as separate panels (failed groups first); the table shows them all.
@@ -142,7 +142,10 @@ pub fn run_batch_report(
             p
         })
         .collect();
-    let failed_first = if order.iter().any(|&i| fits[i].row.status != GroupStatus::Converged) {
+    let failed_first = if order
+        .iter()
+        .any(|&i| fits[i].row.status != GroupStatus::Converged)
+    {
         " Groups that failed or did not converge come first."
     } else {
         ""

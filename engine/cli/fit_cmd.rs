@@ -5,8 +5,8 @@
 use super::args::{FitArgs, Format};
 use super::batch::run_batch;
 use super::output::{emit, write_plots};
-use super::provenance::{Run, WithRun};
 use super::prepare::{bind_input, read_input, run_fit as lm_fit, starting_values_searched};
+use super::provenance::{Run, WithRun};
 use super::Outcome;
 use crate::cli::error::Error;
 use foothold::features::detect;

@@ -52,7 +52,11 @@ pub enum Outcome {
 /// batch on a terminal).
 pub fn run() -> i32 {
     let stdout = std::io::stdout();
-    run_from(std::env::args_os(), &mut stdout.lock(), &mut std::io::stderr())
+    run_from(
+        std::env::args_os(),
+        &mut stdout.lock(),
+        &mut std::io::stderr(),
+    )
 }
 
 /// Runs a command line (`args[0]` is the program name) with the given
@@ -78,7 +82,11 @@ where
     let layout = prepare::layout_args;
     let result = match &cli.command {
         Command::Fit(a) => layout(&a.input, a.by.as_ref(), true).and_then(|(input, by)| {
-            let a = args::FitArgs { input, by, ..a.clone() };
+            let a = args::FitArgs {
+                input,
+                by,
+                ..a.clone()
+            };
             fit_cmd::run_fit(&a, &run, out, err)
         }),
         Command::Infer(a) => layout(&a.input, None, false).and_then(|(input, _)| {
@@ -87,15 +95,29 @@ where
         }),
         Command::Rank(a) => {
             layout(&a.input, a.search.by.as_ref(), false).and_then(|(input, by)| {
-                let search = args::SearchArgs { by, ..a.search.clone() };
-                let a = args::RankArgs { input, search, ..a.clone() };
+                let search = args::SearchArgs {
+                    by,
+                    ..a.search.clone()
+                };
+                let a = args::RankArgs {
+                    input,
+                    search,
+                    ..a.clone()
+                };
                 rank_cmd::run_rank(&a, &run, out, err)
             })
         }
         Command::Report(a) => {
             layout(&a.input, a.search.by.as_ref(), true).and_then(|(input, by)| {
-                let search = args::SearchArgs { by, ..a.search.clone() };
-                let a = args::ReportArgs { input, search, ..a.clone() };
+                let search = args::SearchArgs {
+                    by,
+                    ..a.search.clone()
+                };
+                let a = args::ReportArgs {
+                    input,
+                    search,
+                    ..a.clone()
+                };
                 report_cmd::run_report(&a, &run, out, err)
             })
         }

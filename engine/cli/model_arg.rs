@@ -4,8 +4,8 @@
 //! library name gets the nearest names as a hint; a data column named `e` or
 //! `pi` is that column in a formula, with a note that it hides the constant.
 
-use foothold::data::Dataset;
 use crate::cli::error::Error;
+use foothold::data::Dataset;
 use foothold::library::{self, LibraryModel, LIBRARY_X};
 use foothold::symbolic::model::ModelError;
 use foothold::symbolic::parse::{parse_formula, parse_formula_for, ParsedFormula, CONSTANTS};
@@ -231,9 +231,13 @@ mod tests {
             .unwrap_err()
             .to_string();
         assert!(e.contains("has no 'x'"), "{e}");
-        let e = resolve_model("a*x + k", Some("k"), &[]).unwrap_err().to_string();
+        let e = resolve_model("a*x + k", Some("k"), &[])
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("already uses the name 'k'"), "{e}");
-        let e = resolve_model("exp-decai", None, &[]).unwrap_err().to_string();
+        let e = resolve_model("exp-decai", None, &[])
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("foothold models"), "{e}");
         let s = resolve_model("exp-decay", None, &[]).unwrap();
         let e = bind_model(&s, &data(&["x", "y", "k"]), None)
@@ -246,10 +250,15 @@ mod tests {
     fn misspelt_names_get_the_nearest_library_names() {
         assert_eq!(edit_distance("kitten", "sitting"), 3);
         assert_eq!(edit_distance("", "abc"), 3);
-        assert_eq!(nearest_library_names("michaelis_menten"), vec!["michaelis-menten"]);
+        assert_eq!(
+            nearest_library_names("michaelis_menten"),
+            vec!["michaelis-menten"]
+        );
         assert_eq!(nearest_library_names("Logistic3"), vec!["logistic-3"]);
         assert!(nearest_library_names("a").is_empty());
-        let e = resolve_model("michaelis_menten", None, &[]).unwrap_err().to_string();
+        let e = resolve_model("michaelis_menten", None, &[])
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("did you mean michaelis-menten?"), "{e}");
         // A name near no library name is read as a formula (and refused when bound).
         assert!(resolve_model("rate", None, &[]).is_ok());
@@ -260,7 +269,11 @@ mod tests {
         let cols: Vec<String> = ["x", "e"].iter().map(|s| s.to_string()).collect();
         let s = resolve_model("e = a*x^b", None, &cols).unwrap();
         assert_eq!(s.notes.len(), 1);
-        assert!(s.notes[0].contains("'e' in the formula is the data column 'e'"), "{:?}", s.notes);
+        assert!(
+            s.notes[0].contains("'e' in the formula is the data column 'e'"),
+            "{:?}",
+            s.notes
+        );
         let m = bind_model(&s, &data(&["x", "e"]), None).unwrap();
         assert_eq!(m.response, "e");
         // The constant where no column has the name: no note.

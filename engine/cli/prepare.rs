@@ -4,9 +4,9 @@
 
 use super::args::InputArgs;
 use super::model_arg::{bind_model, resolve_model, ModelSpec};
+use crate::cli::error::Error;
 use foothold::data::{is_column_spec, match_columns, read_table_noted, stack_columns};
 use foothold::data::{DataError, Dataset, DecimalMark, ReadNotes, ReadOptions};
-use crate::cli::error::Error;
 use foothold::symbolic::Model;
 use std::io::Write;
 
@@ -195,4 +195,3 @@ pub fn bind_input(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Bound
     bound.context.warnings.extend(spec.notes.iter().cloned());
     Ok((spec, bound))
 }
-

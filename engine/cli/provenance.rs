@@ -108,18 +108,26 @@ mod tests {
             model: &'static str,
             n: usize,
         }
-        let run = Run::new(vec!["fit".into(), "d.csv".into(), "--model".into(), "a*x".into()])
-            .searched(&SearchOptions {
-                seed: 7,
-                starts: 16,
-                ..SearchOptions::default()
-            });
+        let run = Run::new(vec![
+            "fit".into(),
+            "d.csv".into(),
+            "--model".into(),
+            "a*x".into(),
+        ])
+        .searched(&SearchOptions {
+            seed: 7,
+            starts: 16,
+            ..SearchOptions::default()
+        });
         let text = serde_json::to_string(&WithRun {
             doc: Doc { model: "a*x", n: 3 },
             run: &run,
         })
         .unwrap();
-        assert!(text.starts_with("{\"model\":\"a*x\",\"n\":3,\"run\":{"), "{text}");
+        assert!(
+            text.starts_with("{\"model\":\"a*x\",\"n\":3,\"run\":{"),
+            "{text}"
+        );
         let v: serde_json::Value = serde_json::from_str(&text).unwrap();
         assert_eq!(v["run"]["arguments"][3], "a*x");
         assert_eq!(v["run"]["seed"], 7);
@@ -133,7 +141,10 @@ mod tests {
             )
         );
         let page = run.add_to_page("<main>\n<p>x</p>\n</main>\n</body>".into());
-        assert!(page.contains("<footer class=\"meta\"><p>foothold "), "{page}");
+        assert!(
+            page.contains("<footer class=\"meta\"><p>foothold "),
+            "{page}"
+        );
         assert!(page.contains("--model &#39;a*x&#39;"), "{page}");
         assert!(page.ends_with("</footer>\n</main>\n</body>"), "{page}");
     }

@@ -6,11 +6,11 @@ use super::args::{Format, RankArgs};
 use super::prepare::{bind_input, read_input};
 use super::provenance::Run;
 use super::Outcome;
-use foothold::auto_start::infer_and_search;
 use crate::cli::error::Error;
+use foothold::auto_start::infer_and_search;
+use foothold::search::{SearchOptions, SearchOutcome};
 use foothold_report::fit_table::format_number;
 use foothold_report::formats::csv_number;
-use foothold::search::{SearchOptions, SearchOutcome};
 use serde::Serialize;
 use std::io::Write;
 
@@ -53,7 +53,10 @@ pub struct FlatValley {
 
 /// The flat-valley note as tables print it.
 pub fn valley_note(v: &FlatValley) -> String {
-    let g = |x: Option<f64>| x.map(|x| format_number(x, 7)).unwrap_or_else(|| "n/a".into());
+    let g = |x: Option<f64>| {
+        x.map(|x| format_number(x, 7))
+            .unwrap_or_else(|| "n/a".into())
+    };
     format!(
         "flat valley: {} minima of equal cost (ssr {} to {}) along a direction moving {}; \
          reported once, at its lowest point",
@@ -256,9 +259,7 @@ pub fn run_rank(
                     "\nrank {}  ssr {}  share {}  median iterations {}{}\n",
                     c.rank,
                     g(c.ssr),
-                    c.share
-                        .map(percent)
-                        .unwrap_or_else(|| "n/a".into()),
+                    c.share.map(percent).unwrap_or_else(|| "n/a".into()),
                     c.iterations
                         .map(|i| i.to_string())
                         .unwrap_or_else(|| "n/a".into()),

@@ -9,14 +9,14 @@ use super::prepare::{bind_input, read_input, run_fit, starting_values, starts_gi
 use super::provenance::Run;
 use super::rank_cmd::{ranked, search_options};
 use super::Outcome;
-use foothold::auto_start::{best_start, infer_and_search};
 use crate::cli::error::Error;
+use foothold::auto_start::{best_start, infer_and_search};
 use foothold::features::detect;
 use foothold::fit::problem::Problem;
+use foothold::search::SearchOptions;
 use foothold_report::assemble::{fit_sheet, report_input, survey_panels, ReportParts};
 use foothold_report::fit_table::{format_number, SIGNIFICANT};
 use foothold_report::html::{render_report, MinimumRow, StartingValueRow};
-use foothold::search::SearchOptions;
 use std::io::Write;
 
 /// Today's date (UTC) as YYYY-MM-DD, or the date of `SOURCE_DATE_EPOCH` when

@@ -14,13 +14,13 @@
 //! ```
 
 use crate::auto_start::{infer_and_search, starts_for};
-use crate::pipeline::{bind_rows, run_fit};
-use crate::starts::order_starts;
 use crate::data::Dataset;
 use crate::error::Error;
 use crate::fit::problem::Problem;
 use crate::fit::stats::FitSummary;
 use crate::infer::InferOptions;
+use crate::pipeline::{bind_rows, run_fit};
+use crate::starts::order_starts;
 use crate::symbolic::Model;
 
 pub use crate::fit::stats::{FitSummary as Summary, ParamEstimate};

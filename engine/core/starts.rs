@@ -24,16 +24,16 @@ pub enum StartError {
     #[error("a starting value for '{name}' is given more than once (parameters: {params})")]
     Duplicate { name: String, params: String },
     /// A value that is not a finite number.
-    #[error("starting value {name}={text}: '{text}' is not a finite number (parameters: {params})")]
+    #[error(
+        "starting value {name}={text}: '{text}' is not a finite number (parameters: {params})"
+    )]
     NotANumber {
         name: String,
         text: String,
         params: String,
     },
     /// Parameters left without a value.
-    #[error(
-        "no starting value for {missing}; every parameter needs one (parameters: {params})"
-    )]
+    #[error("no starting value for {missing}; every parameter needs one (parameters: {params})")]
     Missing { missing: String, params: String },
 }
 
@@ -162,7 +162,13 @@ mod tests {
         let e = parse_starts(&[], &p).unwrap_err().to_string();
         assert!(e.contains("--start a=1,k=1"), "{e}");
         let e = order_starts(&[("a", 1.0), ("k", f64::NAN)], &p).unwrap_err();
-        assert!(e.to_string().contains("'NaN' is not a finite number"), "{e}");
-        assert_eq!(order_starts(&[("k", 2.0), ("a", 1.0)], &p), Ok(vec![1.0, 2.0]));
+        assert!(
+            e.to_string().contains("'NaN' is not a finite number"),
+            "{e}"
+        );
+        assert_eq!(
+            order_starts(&[("k", 2.0), ("a", 1.0)], &p),
+            Ok(vec![1.0, 2.0])
+        );
     }
 }

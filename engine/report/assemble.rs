@@ -63,7 +63,12 @@ fn straight_pieces(r: &ViewReport) -> Vec<&Segment> {
 pub fn log_x_omission(features: &DataFeatures, x: &str) -> Option<String> {
     let lin = features.view(XAxis::Linear, YTransform::Identity)?;
     let logx = features.view(XAxis::Log, YTransform::Identity)?;
-    let n: usize = lin.view.counts.iter().sum::<usize>().max(lin.view.points.len());
+    let n: usize = lin
+        .view
+        .counts
+        .iter()
+        .sum::<usize>()
+        .max(lin.view.points.len());
     let negative: usize = lin
         .view
         .points
@@ -298,7 +303,11 @@ fn cited_word(feature: &str) -> Option<&'static str> {
 /// The numbers written in a text (e.g. `≈ 24.300` or `1.5e-3`).
 fn numbers_in(text: &str) -> Vec<f64> {
     text.split(|c: char| !(c.is_ascii_digit() || matches!(c, '.' | '-' | 'e' | 'E' | '+')))
-        .filter_map(|t| t.trim_matches(|c| c == '.' || c == 'e' || c == 'E').parse::<f64>().ok())
+        .filter_map(|t| {
+            t.trim_matches(|c| c == '.' || c == 'e' || c == 'E')
+                .parse::<f64>()
+                .ok()
+        })
         .filter(|v| v.is_finite())
         .collect()
 }
@@ -323,7 +332,10 @@ pub fn cited_rows(table: &Table, derivations: &[&str]) -> Vec<usize> {
             }
             mine.retain(|v| *v != 0.0);
             derivations.iter().any(|d| {
-                d.contains(word) && numbers_in(d).iter().any(|v| mine.iter().any(|m| same(*v, *m)))
+                d.contains(word)
+                    && numbers_in(d)
+                        .iter()
+                        .any(|v| mine.iter().any(|m| same(*v, *m)))
             })
         })
         .map(|(i, _)| i)
@@ -355,9 +367,8 @@ pub fn features_up_front(
         .enumerate()
         .filter(|(_, r)| {
             r.first() == Some(&main)
-                && r.get(1).is_some_and(|f| {
-                    f == "direction" || f.ends_with("plateau") || f == "intercept"
-                })
+                && r.get(1)
+                    .is_some_and(|f| f == "direction" || f.ends_with("plateau") || f == "intercept")
         })
         .map(|(i, _)| i)
         .collect();
@@ -467,10 +478,7 @@ pub fn fit_facts(summary: &FitSummary) -> Vec<(String, String)> {
                 summary.iterations, summary.evaluations
             ),
         ),
-        (
-            "Stop reason".into(),
-            crate::fit_table::stop_text(summary),
-        ),
+        ("Stop reason".into(), crate::fit_table::stop_text(summary)),
         (
             "Condition number".into(),
             format_number(summary.condition_number, 3),

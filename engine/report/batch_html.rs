@@ -80,7 +80,11 @@ pub fn render_batch_report(input: &BatchReportInput) -> String {
 
     section(&mut h, "All groups");
     if input.overlay_svg.is_empty() && !input.overlay_note.is_empty() {
-        let _ = writeln!(h, "<p class=\"note\">{}</p>", escape_html(&input.overlay_note));
+        let _ = writeln!(
+            h,
+            "<p class=\"note\">{}</p>",
+            escape_html(&input.overlay_note)
+        );
     } else {
         figure(
             &mut h,

@@ -634,7 +634,8 @@ mod tests {
         assert!(html.contains("4.98123") && html.contains("0.03120"));
         assert!(html.contains("4.91700 to 5.04600"));
         // The feature used up front, the other folded away.
-        let feats = &html[html.find("<h2>Features found").unwrap()..html.find("<h2>Starting").unwrap()];
+        let feats =
+            &html[html.find("<h2>Features found").unwrap()..html.find("<h2>Starting").unwrap()];
         let fold = feats.find("<details").expect("details element");
         assert!(feats[..fold].contains("<td>plateau</td>"), "{feats}");
         assert!(feats[fold..].contains("<summary>1 other feature found in the views</summary>"));
@@ -644,7 +645,10 @@ mod tests {
     #[test]
     fn formula_gets_its_response() {
         assert_eq!(formula_with_response("a*exp(-k*t)", "y"), "y = a*exp(-k*t)");
-        assert_eq!(formula_with_response("log(y) = b0 + b1*x", "log(y)"), "log(y) = b0 + b1*x");
+        assert_eq!(
+            formula_with_response("log(y) = b0 + b1*x", "log(y)"),
+            "log(y) = b0 + b1*x"
+        );
     }
 
     #[test]
@@ -664,7 +668,8 @@ mod tests {
         assert!(!html.contains("<link") && !html.contains("@import") && !html.contains("url("));
         // Deterministic: equal input, equal page.
         assert_eq!(html, render_report(&demo_input()));
-        let dir = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../target/plots-check");
+        let dir =
+            std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../target/plots-check");
         std::fs::create_dir_all(&dir).expect("create target/plots-check");
         std::fs::write(dir.join("report.html"), &html).expect("write report.html");
     }

@@ -450,7 +450,11 @@ mod tests {
         };
         let (d, _) = parse_delimited_with("x;y\n1;2\n", "t.csv", &opts).unwrap();
         let e = d.select(&["x;y"]).unwrap_err();
-        assert!(e.to_string().ends_with("(cells separated by semicolons? try --delimiter ';')"), "{e}");
+        assert!(
+            e.to_string()
+                .ends_with("(cells separated by semicolons? try --delimiter ';')"),
+            "{e}"
+        );
         let opts = ReadOptions {
             decimal: Some(DecimalMark::Comma),
             ..ReadOptions::default()

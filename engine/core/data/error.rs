@@ -175,7 +175,11 @@ pub enum DataError {
     DecimalIsDelimiter { path: String },
     /// `--header-row N` past the last row.
     #[error("{path}: --header-row {row} is past the end of the table (its last row is {last})")]
-    HeaderRowBeyondEnd { path: String, row: usize, last: usize },
+    HeaderRowBeyondEnd {
+        path: String,
+        row: usize,
+        last: usize,
+    },
     /// `--header-row N` names a blank line, a comment or a line inside a quoted cell.
     #[error("{path}: --header-row {row} is a blank or comment row, or inside a quoted cell; give the row of the column names")]
     HeaderRowNotARow { path: String, row: usize },
@@ -192,7 +196,10 @@ pub enum DataError {
         available: String,
     },
     /// The column of wide-column names used where a number is needed.
-    #[error("{path}: column '{}' holds the names of the wide columns, not numbers", one_line(column))]
+    #[error(
+        "{path}: column '{}' holds the names of the wide columns, not numbers",
+        one_line(column)
+    )]
     LabelColumn { path: String, column: String },
     /// A column made by reshaping a wide table whose name the table already uses.
     #[error("{path}: reshaping the wide columns makes a column '{}', but the table already has one; rename that column", one_line(name))]

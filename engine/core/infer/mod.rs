@@ -181,8 +181,10 @@ fn infer_on_summary(problem: &Problem, opts: &InferOptions) -> Result<Inference,
             c.ssr = if s0.is_finite() { s0 } else { f64::INFINITY };
         }
     }
-    let mut order: Vec<(usize, Candidate)> =
-        std::mem::take(&mut inf.candidates).into_iter().enumerate().collect();
+    let mut order: Vec<(usize, Candidate)> = std::mem::take(&mut inf.candidates)
+        .into_iter()
+        .enumerate()
+        .collect();
     order.retain(|(_, c)| c.ssr.is_finite());
     // stable: the refined first candidate stays first on a tie
     order.sort_by(|a, b| a.1.ssr.total_cmp(&b.1.ssr));

@@ -4,8 +4,8 @@
 //! run off to the same infinity count as agreeing). Also the diagnostics of a
 //! minimum: condition number and parameters at a boundary or at infinity.
 
-use crate::fit::svd::safe_column_norm;
 use super::scale::ParamScale;
+use crate::fit::svd::safe_column_norm;
 use nalgebra::DMatrix;
 
 /// A parameter beyond this multiple of its typical scale is taken to be at infinity.
@@ -472,7 +472,12 @@ mod tests {
     #[test]
     fn minima_on_a_flat_valley_join_and_a_ridge_keeps_them_apart() {
         let valley = |p: &[f64]| (p[0] * p[1] - 1.0).powi(2) + 1.0;
-        let pts = [vec![1.0, 1.0], vec![1.1, 1.0 / 1.1], vec![1.2, 1.0 / 1.2], vec![-1.0, -1.0]];
+        let pts = [
+            vec![1.0, 1.0],
+            vec![1.1, 1.0 / 1.1],
+            vec![1.2, 1.0 / 1.2],
+            vec![-1.0, -1.0],
+        ];
         let vp: Vec<ValleyPoint> = pts
             .iter()
             .map(|p| ValleyPoint {
@@ -488,10 +493,17 @@ mod tests {
         assert_eq!(valley_direction(&ends, &[], 1e-3), vec![0, 1]);
         // Different costs never join.
         let vp2 = [
-            ValleyPoint { params: &pts[0], ssr: 1.0, divergent: &[] },
-            ValleyPoint { params: &pts[1], ssr: 1.1, divergent: &[] },
+            ValleyPoint {
+                params: &pts[0],
+                ssr: 1.0,
+                divergent: &[],
+            },
+            ValleyPoint {
+                params: &pts[1],
+                ssr: 1.1,
+                divergent: &[],
+            },
         ];
         assert_eq!(flat_valleys(&vp2, valley), vec![0, 1]);
     }
-
 }

@@ -300,7 +300,10 @@ pub fn search(
                     minima: group.len(),
                     direction: cluster::valley_direction(&ends, &scales, tol.param_rtol),
                     ssr_low: group.iter().map(|b| b.ssr).fold(f64::INFINITY, f64::min),
-                    ssr_high: group.iter().map(|b| b.ssr).fold(f64::NEG_INFINITY, f64::max),
+                    ssr_high: group
+                        .iter()
+                        .map(|b| b.ssr)
+                        .fold(f64::NEG_INFINITY, f64::max),
                 }
             });
             Minimum {

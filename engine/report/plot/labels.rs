@@ -170,7 +170,10 @@ mod tests {
             .map(|p| Rect::at(p.expect("every label placed"), size))
             .collect();
         for (i, r) in rects.iter().enumerate() {
-            assert!(r.x0 >= 0 && r.x1 <= 200 && r.y0 >= 0 && r.y1 <= 100, "{r:?}");
+            assert!(
+                r.x0 >= 0 && r.x1 <= 200 && r.y0 >= 0 && r.y1 <= 100,
+                "{r:?}"
+            );
             for s in &rects[i + 1..] {
                 assert!(!r.overlaps(s), "{r:?} overlaps {s:?}");
             }

@@ -10,7 +10,8 @@ mod png_text;
 mod style;
 
 pub use overlay::{
-    common_y_range, group_panel, GroupSeries, Overlay, GROUP_COLOURS, MAX_LEGEND, MAX_OVERLAY_GROUPS,
+    common_y_range, group_panel, GroupSeries, Overlay, GROUP_COLOURS, MAX_LEGEND,
+    MAX_OVERLAY_GROUPS,
 };
 pub use panel::{Curve, Panel, Segment};
 pub use style::format_num;

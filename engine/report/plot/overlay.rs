@@ -89,7 +89,12 @@ fn shape_outline(shape: usize, r: i32) -> Vec<(i32, i32)> {
             })
             .collect(),
         1 => vec![(0, -r - 1), (r + 1, r), (-r - 1, r)],
-        2 => vec![(-r + 1, -r + 1), (r - 1, -r + 1), (r - 1, r - 1), (-r + 1, r - 1)],
+        2 => vec![
+            (-r + 1, -r + 1),
+            (r - 1, -r + 1),
+            (r - 1, r - 1),
+            (-r + 1, r - 1),
+        ],
         3 => vec![(0, -r - 1), (r + 1, 0), (0, r + 1), (-r - 1, 0)],
         4 => vec![(-r - 1, -r), (r + 1, -r), (0, r + 1)],
         _ => {
@@ -180,9 +185,10 @@ pub(crate) fn draw_overlay<DB: DrawingBackend>(
             .filter(|p| xs.contains(p.0) && ys.contains(p.1));
         chart
             .draw_series(pts.map(|p| {
-                EmptyElement::at(p) + Polygon::new(shape_outline(shape, 4), colour.mix(0.8).filled())
+                EmptyElement::at(p)
+                    + Polygon::new(shape_outline(shape, 4), colour.mix(0.8).filled())
             }))
-        .map_err(err)?;
+            .map_err(err)?;
     }
     draw_legend(&right, o)?;
     root.present().map_err(err)

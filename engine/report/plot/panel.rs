@@ -367,7 +367,10 @@ pub fn draw_panel<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, panel: &Pan
         for l in &entries {
             w = w.max(area.estimate_text_size(l, &label_font).map_err(err)?.0 as i32);
         }
-        let (w, h) = (w + 26 + 24, entries.len() as i32 * (style::LABEL_PX as i32 + 8) + 14);
+        let (w, h) = (
+            w + 26 + 24,
+            entries.len() as i32 * (style::LABEL_PX as i32 + 8) + 14,
+        );
         let (right, upper) = legend_corner;
         let x0 = if right { pw - 8 - w } else { 8 };
         let y0 = if upper { 8 } else { ph - 8 - h };

@@ -77,7 +77,12 @@ impl DrawingBackend for GlyphBitmap<'_> {
     fn draw_pixel(&mut self, point: BackendCoord, color: BackendColor) -> Fallible {
         self.inner.draw_pixel(point, color)
     }
-    fn draw_line<S: BackendStyle>(&mut self, from: BackendCoord, to: BackendCoord, s: &S) -> Fallible {
+    fn draw_line<S: BackendStyle>(
+        &mut self,
+        from: BackendCoord,
+        to: BackendCoord,
+        s: &S,
+    ) -> Fallible {
         self.inner.draw_line(from, to, s)
     }
     fn draw_rect<S: BackendStyle>(
@@ -231,9 +236,19 @@ mod tests {
         let last = bounds(glyphs[2]);
         let ink = inked_columns(&buf, w);
         let (lo, hi) = (*ink.first().unwrap() as f32, *ink.last().unwrap() as f32);
-        assert!(first.min.x >= 2.0, "H has a left side bearing: {}", first.min.x);
-        assert!((lo - (10.0 + first.min.x)).abs() <= 1.0, "ink starts at {lo}");
-        assert!((hi + 1.0 - (10.0 + last.max.x)).abs() <= 1.0, "ink ends at {hi}");
+        assert!(
+            first.min.x >= 2.0,
+            "H has a left side bearing: {}",
+            first.min.x
+        );
+        assert!(
+            (lo - (10.0 + first.min.x)).abs() <= 1.0,
+            "ink starts at {lo}"
+        );
+        assert!(
+            (hi + 1.0 - (10.0 + last.max.x)).abs() <= 1.0,
+            "ink ends at {hi}"
+        );
         // The measured size is the laid-out width, so anchors centre text truly.
         let (tw, _) = text_size(40.0, "HxH").unwrap();
         assert_eq!(tw, width.ceil() as u32);
