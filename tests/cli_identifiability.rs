@@ -184,8 +184,7 @@ fn report_marks_the_rate_beside_its_estimate() {
     );
     let a_row = html
         .lines()
-        .filter(|l| l.starts_with("<tr><td><code>a</code>"))
-        .last()
+        .rfind(|l| l.starts_with("<tr><td><code>a</code>"))
         .unwrap();
     assert!(!a_row.contains("unidentified"), "{a_row}");
 }

@@ -676,16 +676,18 @@ mod tests {
 
     #[test]
     fn empty_input_and_hostile_svg_are_handled() {
-        let mut input = ReportInput::default();
-        input.fit_svg = "<svg><script>x()</script></svg>".into();
-        input.survey_svg = "not svg".into();
-        input.estimates = vec![EstimateRow {
-            parameter: "p".into(),
-            estimate: f64::NAN,
-            std_error: Some(f64::INFINITY),
-            interval: None,
-            note: None,
-        }];
+        let input = ReportInput {
+            fit_svg: "<svg><script>x()</script></svg>".into(),
+            survey_svg: "not svg".into(),
+            estimates: vec![EstimateRow {
+                parameter: "p".into(),
+                estimate: f64::NAN,
+                std_error: Some(f64::INFINITY),
+                interval: None,
+                note: None,
+            }],
+            ..ReportInput::default()
+        };
         let html = render_report(&input);
         assert!(!html.contains("<script") && !html.contains("<svg"));
         assert_eq!(html.matches("Plot not available.").count(), 2);

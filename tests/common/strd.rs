@@ -197,7 +197,7 @@ pub fn parse(name: &str, text: &str) -> Option<StrdProblem> {
             l.starts_with("Data:") && lines.get(i + 1).is_some_and(|n| !numbers(n).is_empty())
         })
         .map(|(i, _)| i)
-        .last()?;
+        .next_back()?;
     let columns: Vec<String> = lines[start]
         .trim_start_matches("Data:")
         .split_whitespace()

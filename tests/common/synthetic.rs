@@ -61,12 +61,15 @@ pub struct Case {
     pub truth: Vec<(String, f64)>,
 }
 
+/// Predictor columns and true parameters, both by name.
+pub type Drawn = (Vec<(String, Vec<f64>)>, Vec<(String, f64)>);
+
 /// A model form of the trade and how to draw a realistic instance of it.
 pub struct Form {
     pub name: &'static str,
     pub formula: &'static str,
     /// Draws predictor columns and true parameters.
-    pub draw: fn(&mut Rng) -> (Vec<(String, Vec<f64>)>, Vec<(String, f64)>),
+    pub draw: fn(&mut Rng) -> Drawn,
     /// Relative noise (share of the response's range).
     pub noise: f64,
 }

@@ -212,6 +212,9 @@ fn eval_jacobian(
     repaired
 }
 
+// NaN-aware on purpose: `!(x > 0.0)` is also true for NaN, which must take
+// the same branch as a non-positive value (clippy's partial_cmp form hides that).
+#[allow(clippy::neg_cmp_op_on_partial_ord)]
 /// Minimises ½‖r(p)‖² from `start`.
 pub fn levenberg_marquardt(problem: &dyn Residuals, start: &[f64], opts: &LmOptions) -> LmResult {
     let n = start.len();
@@ -627,8 +630,8 @@ mod tests {
             2
         }
         fn residuals(&self, p: &[f64], r: &mut [f64]) {
-            for i in 0..self.x.len() {
-                r[i] = self.y[i] - p[0] * (-p[1] * self.x[i]).exp();
+            for (i, ri) in r.iter_mut().enumerate().take(self.x.len()) {
+                *ri = self.y[i] - p[0] * (-p[1] * self.x[i]).exp();
             }
         }
         fn jacobian(&self, p: &[f64], j: &mut DMatrix<f64>) {
@@ -653,8 +656,8 @@ mod tests {
             2
         }
         fn residuals(&self, p: &[f64], r: &mut [f64]) {
-            for i in 0..self.x.len() {
-                r[i] = self.y[i] - p[0] * (p[1] * self.x[i]).exp();
+            for (i, ri) in r.iter_mut().enumerate().take(self.x.len()) {
+                *ri = self.y[i] - p[0] * (p[1] * self.x[i]).exp();
             }
         }
         fn jacobian(&self, p: &[f64], j: &mut DMatrix<f64>) {

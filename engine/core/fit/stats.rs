@@ -393,8 +393,8 @@ mod tests {
             2
         }
         fn residuals(&self, p: &[f64], r: &mut [f64]) {
-            for i in 0..self.x.len() {
-                r[i] = self.y[i] - p[0] - p[1] * self.x[i];
+            for (i, ri) in r.iter_mut().enumerate().take(self.x.len()) {
+                *ri = self.y[i] - p[0] - p[1] * self.x[i];
             }
         }
         fn jacobian(&self, _p: &[f64], j: &mut DMatrix<f64>) {
@@ -418,8 +418,8 @@ mod tests {
             2
         }
         fn residuals(&self, p: &[f64], r: &mut [f64]) {
-            for i in 0..self.x.len() {
-                r[i] = self.y[i] - p[0] * p[1] * self.x[i];
+            for (i, ri) in r.iter_mut().enumerate().take(self.x.len()) {
+                *ri = self.y[i] - p[0] * p[1] * self.x[i];
             }
         }
         fn jacobian(&self, p: &[f64], j: &mut DMatrix<f64>) {

@@ -105,6 +105,9 @@ pub fn incomplete_beta(a: f64, b: f64, x: f64) -> f64 {
     }
 }
 
+// NaN-aware on purpose: `!(x > 0.0)` is also true for NaN, which must take
+// the same branch as a non-positive value (clippy's partial_cmp form hides that).
+#[allow(clippy::neg_cmp_op_on_partial_ord)]
 /// Upper tail P(T > t) of Student's t with `dof` degrees of freedom.
 pub fn t_upper_tail(t: f64, dof: f64) -> f64 {
     if t.is_nan() || !(dof > 0.0) {
@@ -135,9 +138,12 @@ fn t_density(t: f64, dof: f64) -> f64 {
     (ln_c - 0.5 * (dof + 1.0) * (t * t / dof).ln_1p()).exp()
 }
 
+// NaN-aware on purpose: `!(x > 0.0)` is also true for NaN, which must take
+// the same branch as a non-positive value (clippy's partial_cmp form hides that).
+#[allow(clippy::neg_cmp_op_on_partial_ord)]
 /// Quantile t_p,ν: the t with P(T ≤ t) = p. NaN for p outside (0, 1) or dof ≤ 0.
 pub fn t_quantile(p: f64, dof: f64) -> f64 {
-    if !(p > 0.0 && p < 1.0) || !(dof > 0.0) || !dof.is_finite() {
+    if !(p > 0.0 && p < 1.0 && dof > 0.0 && dof.is_finite()) {
         return f64::NAN;
     }
     if p == 0.5 {

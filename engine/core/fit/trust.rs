@@ -202,6 +202,9 @@ pub fn damped_solve(
     }
 }
 
+// NaN-aware on purpose: `!(x > 0.0)` is also true for NaN, which must take
+// the same branch as a non-positive value (clippy's partial_cmp form hides that).
+#[allow(clippy::neg_cmp_op_on_partial_ord)]
 /// Finds the Levenberg parameter λ ≥ 0 such that the damped step x solving
 /// (JᵀJ + λD²)x = −Jᵀr has ‖Dx‖ within 10% of `delta`, or λ = 0 when the
 /// Gauss–Newton step already lies inside (Moré 1978, lmpar: safeguarded

@@ -247,7 +247,7 @@ pub fn apply(perm: &[usize], p: &[f64]) -> Vec<f64> {
         .collect()
 }
 
-/// The transpositions i ↔ perm[i] (i < perm[i]) that make up an involution.
+/// The transpositions `i ↔ perm[i]` (`i < perm[i]`) that make up an involution.
 pub fn transpositions(perm: &[usize]) -> Vec<(usize, usize)> {
     perm.iter()
         .enumerate()

@@ -183,7 +183,7 @@ pub fn affine_in(f: &Expr, set: &[usize]) -> Option<(Expr, Vec<Expr>)> {
             Some((d(o), c.into_iter().map(d).collect()))
         }
         Expr::Bin(BinOp::Pow, a, b) => match **b {
-            Expr::Num(v) if v == 1.0 => affine_in(a, set),
+            Expr::Num(1.0) => affine_in(a, set),
             _ => None,
         },
         _ => None,
