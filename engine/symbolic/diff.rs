@@ -56,13 +56,12 @@ fn guard_zero(u: &Expr) -> Expr {
 /// of a dose–response curve) `u' = 0` too, and with 0 < w < 1 the
 /// floating-point product is ∞·0 = NaN, while u^w ≡ 0 along the row so the
 /// slope's limit is 0. The base is guarded by `functions::vanishing_guard`.
-/// A constant exponent outside (0, 1) needs no guard: `u^(w−1)` is finite at
-/// u = 0 for w ≥ 1, and for w ≤ 0 the value u^w itself is already infinite.
+/// With w ≤ 0 the value u^w is ∞ on such a row, also constant in the
+/// parameters (and often made finite downstream, as in exp(−u^w) = 0), so the
+/// slope's limit is again 0. Only a constant exponent w ≥ 1 needs no guard:
+/// `u^(w−1)` is then finite at u = 0.
 fn power_slope(u: &Expr, w: &Expr, du: Expr) -> Expr {
-    let needs_guard = match w {
-        Expr::Num(v) => *v > 0.0 && *v < 1.0,
-        _ => true,
-    };
+    let needs_guard = !matches!(w, Expr::Num(v) if *v >= 1.0);
     let base = if needs_guard {
         vanishing_guard(u.clone(), u, &du)
     } else {
@@ -118,14 +117,20 @@ fn d(e: &Expr, w: Wrt) -> Expr {
                     } else {
                         // d(u^w) = w' u^w log u + w u^(w-1) u'. Written this way
                         // (not u^w (w' log u + w u'/u)) so that u = 0 gives a finite
-                        // slope where one exists: 0^w log 0 is 0·(−∞), so the log is
-                        // guarded as log(u + 0^|u|), which is log(u) for u ≠ 0 and
-                        // 0 at u = 0 (x^b at x = 0, found by fuzzing).
-                        let t1 = bin(
-                            BinOp::Mul,
-                            db,
-                            bin(BinOp::Mul, e.clone(), call(Func::Log, guard_zero(a))),
-                        );
+                        // slope where one exists. At u = 0, 0^w is 0 (w > 0) or ∞
+                        // (w < 0), constant in w either way, so the limit of the first
+                        // term is 0; in floating point it is 0·(−∞) or ∞·(−∞). Both
+                        // the power and the log are therefore taken of g = u + 0^|u|,
+                        // which is u for u ≠ 0 and 1 at u = 0: g^w·log g is exactly
+                        // u^w·log u elsewhere and 1·0 = 0 there (x^b at x = 0, found
+                        // by fuzzing; exp(−(x/e)^b) with b < 0 at a zero dose).
+                        let t1 = if matches!(a, Expr::Num(v) if *v > 0.0) {
+                            bin(BinOp::Mul, db, bin(BinOp::Mul, e.clone(), call(Func::Log, a.clone())))
+                        } else {
+                            let g = guard_zero(a);
+                            let gw = bin(BinOp::Pow, g.clone(), b.clone());
+                            bin(BinOp::Mul, db, bin(BinOp::Mul, gw, call(Func::Log, g)))
+                        };
                         let t2 = if is_zero(&da) {
                             n(0.0)
                         } else {
@@ -166,7 +171,7 @@ mod tests {
         assert_eq!(dd("a*exp(-b*x)", "a"), "exp(-(b*x))");
         assert_eq!(dd("a*exp(-b*x)", "b"), "-(a*(exp(-(b*x))*x))");
         assert_eq!(dd("x^3", "x"), "3*x^2");
-        assert_eq!(dd("x^a", "a"), "x^a*log(x + 0^abs(x))");
+        assert_eq!(dd("x^a", "a"), "(x + 0^abs(x))^a*log(x + 0^abs(x))");
         assert_eq!(dd("2^a", "a"), "0.6931471805599453*2^a");
         assert_eq!(dd("log(x)", "x"), "1/x");
         assert_eq!(dd("sin(2*x)", "x"), "2*cos(2*x)");
@@ -235,6 +240,17 @@ mod tests {
             let mut vals = vec![0.0; 2];
             vals[e] = 1.8;
             assert_eq!(diff_param(&q.rhs, e).eval(&vals, &[]), 0.0, "{text}");
+        }
+        // A negative exponent: (x/ed)^b = ∞ at x = 0, exp(−∞) = 0, constant in
+        // ed and b along that row, so both slopes are 0 (and d/dd is 0 too).
+        let w = parse_formula("d*exp(-(x/ed)^b)").unwrap();
+        let wi = |s: &str| w.names.iter().position(|n| n == s).unwrap();
+        let mut vals = vec![0.0; 4];
+        vals[wi("d")] = 2.0;
+        vals[wi("ed")] = 1.8;
+        vals[wi("b")] = -0.7;
+        for k in ["d", "ed", "b"] {
+            assert_eq!(diff_param(&w.rhs, wi(k)).eval(&vals, &[]), 0.0, "{k}");
         }
         // A genuinely infinite slope stays infinite: d/da (x − a)^0.5 at x = a.
         let q = parse_formula("(x - a)^0.5").unwrap();

@@ -506,7 +506,7 @@ mod tests {
     /// are ordinary operators, so tape and tree agree there too, at x = 0 included.
     #[test]
     fn matches_tree_walking_bitwise_at_vanishing_bases() {
-        let p = parse_formula("c + (d - c)/(1 + (x/ed)^b) + d*exp(-(x/ed)^b) + sqrt(b*x) + abs(x*ed)")
+        let p = parse_formula("c + (d - c)/(1 + (x/ed)^b) + d*exp(-(x/ed)^b) + sqrt(ed*x) + abs(x*ed)")
             .unwrap();
         let x_idx = p.names.iter().position(|n| n == "x").unwrap();
         let f = p.rhs.map(&|e| match e {
@@ -519,7 +519,12 @@ mod tests {
         let tape = Tape::compile(&outs);
         let mut xs: Vec<f64> = vec![0.0, -0.0, 0.0];
         xs.extend((0..300).map(|i| 0.013 * i as f64));
-        for params in [[0.1, 1.9, 1.8, 0.55], [1.9, 0.1, 0.7, 3.0], [0.0, 1.0, 2.0, 0.3]] {
+        for params in [
+            [0.1, 1.9, 1.8, 0.55],
+            [1.9, 0.1, 0.7, 3.0],
+            [0.0, 1.0, 2.0, 0.3],
+            [0.2, 1.5, 2.0, -0.8],
+        ] {
             let got = tape.eval_columns(&params, &[&xs], xs.len());
             for (k, e) in outs.iter().enumerate() {
                 for (i, &x) in xs.iter().enumerate() {
