@@ -6,8 +6,8 @@ use crate::error::Error;
 use crate::fit::problem::Problem;
 use crate::infer::{infer, InferOptions, Inference, ScanRange};
 use crate::search::{
-    find_sign_flips, find_signed_swaps, find_symmetries, search, ParamScale, SearchOptions,
-    SearchOutcome, SignFreedom,
+    find_sign_flips, find_signed_swaps, find_symmetries, search, Minimum, ParamScale,
+    SearchOptions, SearchOutcome, SignFreedom,
 };
 
 /// Converts inference's natural range of a parameter into the search's scale.
@@ -147,16 +147,36 @@ pub fn starts_with_options(
     Ok((start, counts))
 }
 
-/// The start a fit should use after the search: the point of the best-ranked
-/// proper minimum (finite, no parameter at a boundary or at infinity) with its
-/// rank, or the inferred start (rank `None`) when the search found none.
+/// The start a fit should use after the search: the point of
+/// [`best_proper_minimum`] with its rank, or the inferred start (rank `None`)
+/// when the search found no proper minimum. The final fit starts at that
+/// minimum and Levenberg–Marquardt only accepts steps that lower the sum of
+/// squares, so the answer is never worse than any proper minimum found.
 pub fn best_start(inf: &Inference, outcome: &SearchOutcome) -> (Vec<f64>, Option<usize>) {
+    best_proper_minimum(outcome)
+        .map(|m| (m.params.clone(), Some(m.rank)))
+        .unwrap_or_else(|| (inf.start.clone(), None))
+}
+
+/// The proper minimum (finite sum of squares and parameters, none at a
+/// boundary or at infinity) with the lowest sum of squares; among sums equal
+/// within the ranking's tie (`rank::SSR_TIE`), the best-ranked one.
+pub fn best_proper_minimum(outcome: &SearchOutcome) -> Option<&Minimum> {
+    let proper = |m: &&Minimum| {
+        m.divergent.is_empty() && m.ssr.is_finite() && m.params.iter().all(|v| v.is_finite())
+    };
+    let lowest = outcome
+        .minima
+        .iter()
+        .filter(proper)
+        .map(|m| m.ssr)
+        .fold(f64::INFINITY, f64::min);
+    let tie = crate::search::rank::SSR_TIE * lowest.abs();
     outcome
         .minima
         .iter()
-        .find(|m| m.divergent.is_empty() && m.params.iter().all(|v| v.is_finite()))
-        .map(|m| (m.params.clone(), Some(m.rank)))
-        .unwrap_or_else(|| (inf.start.clone(), None))
+        .filter(proper)
+        .find(|m| m.ssr <= lowest + tie)
 }
 
 #[cfg(test)]
@@ -171,6 +191,49 @@ mod tests {
             sign_free: false,
             typical,
         }
+    }
+
+    fn minimum(rank: usize, ssr: f64, params: Vec<f64>, divergent: Vec<usize>) -> Minimum {
+        Minimum {
+            rank,
+            start: params.clone(),
+            params,
+            ssr,
+            share: 0.1,
+            iterations_median: 5.0,
+            condition: 10.0,
+            divergent,
+            reached_by: 1,
+            credited: 0,
+        }
+    }
+
+    #[test]
+    fn the_answer_is_the_lowest_proper_minimum() {
+        let outcome = |minima: Vec<Minimum>| SearchOutcome {
+            names: vec!["a".into(), "b".into()],
+            minima,
+            candidates_tried: 3,
+            stopped_by_time: false,
+            runs: Vec::new(),
+        };
+        // A divergent minimum first, a worse proper one, then the best proper one.
+        let o = outcome(vec![
+            minimum(1, 0.5, vec![1.0, 1e9], vec![1]),
+            minimum(2, 2.0, vec![1.0, 2.0], vec![]),
+            minimum(3, 1.0, vec![1.5, 3.0], vec![]),
+            minimum(4, 0.1, vec![f64::NAN, 3.0], vec![]),
+        ]);
+        assert_eq!(best_proper_minimum(&o).map(|m| m.rank), Some(3));
+        // Equal sums: the better-ranked one.
+        let o = outcome(vec![
+            minimum(1, 1.0, vec![1.0, 2.0], vec![]),
+            minimum(2, 1.0 - 1e-12, vec![1.0, 2.5], vec![]),
+        ]);
+        assert_eq!(best_proper_minimum(&o).map(|m| m.rank), Some(1));
+        // None proper: none.
+        let o = outcome(vec![minimum(1, 0.5, vec![1.0, 1e9], vec![1])]);
+        assert!(best_proper_minimum(&o).is_none());
     }
 
     #[test]

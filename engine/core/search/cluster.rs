@@ -166,15 +166,24 @@ pub fn is_singular(j: &DMatrix<f64>) -> bool {
 /// grown beyond 1e6× their typical scale, or whose Jacobian column (times the
 /// typical scale) has vanished against the largest one. When every column
 /// vanishes the model is flat there (a plateau, not a minimum): all are listed.
+///
+/// Only rows of the Jacobian that are finite throughout take part: a row that
+/// is not finite (a slope ∞·0 at a boundary row such as a zero-dose control)
+/// says nothing about where the parameters went, so it never makes one
+/// divergent; with no finite row left, the parameter values alone decide.
 pub fn divergent_params(
     params: &[f64],
     jacobian: &DMatrix<f64>,
     scales: &[ParamScale],
 ) -> Vec<usize> {
     let unit = |i: usize| scales.get(i).map(|s| s.unit()).unwrap_or(1.0);
+    let rows: Vec<usize> = (0..jacobian.nrows())
+        .filter(|&r| jacobian.row(r).iter().all(|v| v.is_finite()))
+        .collect();
     let col = |i: usize| -> f64 {
         if i < jacobian.ncols() {
-            safe_column_norm(jacobian.column(i).as_slice()) * unit(i)
+            let c: Vec<f64> = rows.iter().map(|&r| jacobian[(r, i)]).collect();
+            safe_column_norm(&c) * unit(i)
         } else {
             f64::NAN
         }
@@ -183,6 +192,7 @@ pub fn divergent_params(
         .map(col)
         .filter(|v| v.is_finite())
         .fold(0.0, f64::max);
+    let judge_columns = !rows.is_empty() && jacobian.ncols() >= params.len();
     (0..params.len())
         .filter(|&i| {
             let s = scales
@@ -190,7 +200,8 @@ pub fn divergent_params(
                 .cloned()
                 .unwrap_or_else(|| ParamScale::from_value(1.0));
             let c = col(i);
-            at_infinity(params[i], &s) || !c.is_finite() || c <= VANISHING_COLUMN * largest
+            at_infinity(params[i], &s)
+                || (judge_columns && (!c.is_finite() || c <= VANISHING_COLUMN * largest))
         })
         .collect()
 }
@@ -466,6 +477,18 @@ mod tests {
         assert!(divergent_params(&[1.0, 2.0, 3.0], &j3b, &s).is_empty());
         let flat = DMatrix::zeros(2, 3);
         assert_eq!(divergent_params(&[1.0, 2.0, 3.0], &flat, &s), vec![0, 1, 2]);
+        // A non-finite row (∞·0 at a boundary row) decides nothing: the
+        // finite rows show every column alive.
+        let nan_row = DMatrix::from_row_slice(
+            3,
+            3,
+            &[f64::NAN, 0.0, f64::INFINITY, 1.0, 0.5, 1.0, 0.3, 1.0, 0.2],
+        );
+        assert!(divergent_params(&[1.0, 2.0, 3.0], &nan_row, &s).is_empty());
+        // No finite row at all: only the parameter values decide.
+        let all_nan = DMatrix::from_element(2, 3, f64::NAN);
+        assert!(divergent_params(&[1.0, 2.0, 3.0], &all_nan, &s).is_empty());
+        assert_eq!(divergent_params(&[1.0, 2e7, 3.0], &all_nan, &s), vec![1]);
     }
 
     /// Cost (p₀·p₁ − 1)² + 1: a curved flat valley p₀·p₁ = 1 at cost 1.

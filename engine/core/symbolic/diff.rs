@@ -6,7 +6,7 @@
 //! Each function's own derivative comes from the facts table (`functions`).
 
 use super::expr::{BinOp, Expr, Func};
-use super::functions::derivative;
+use super::functions::{derivative, vanishing_guard};
 use super::simplify::{bin, call, neg, simplify};
 
 /// What a derivative is taken with respect to.
@@ -50,6 +50,27 @@ fn guard_zero(u: &Expr) -> Expr {
     bin(BinOp::Add, u.clone(), zero_pow)
 }
 
+/// The power-rule term `w·u^(w−1)·u'`, evaluated by its limit where the base
+/// vanishes together with its derivative: at a row where the data make `u`
+/// vanish for every parameter value (u = x/e at x = 0, the zero-dose control
+/// of a dose–response curve) `u' = 0` too, and with 0 < w < 1 the
+/// floating-point product is ∞·0 = NaN, while u^w ≡ 0 along the row so the
+/// slope's limit is 0. The base is guarded by `functions::vanishing_guard`.
+/// With w ≤ 0 the value u^w is ∞ on such a row, also constant in the
+/// parameters (and often made finite downstream, as in exp(−u^w) = 0), so the
+/// slope's limit is again 0. Only a constant exponent w ≥ 1 needs no guard:
+/// `u^(w−1)` is then finite at u = 0.
+fn power_slope(u: &Expr, w: &Expr, du: Expr) -> Expr {
+    let needs_guard = !matches!(w, Expr::Num(v) if *v >= 1.0);
+    let base = if needs_guard {
+        vanishing_guard(u.clone(), u, &du)
+    } else {
+        u.clone()
+    };
+    let lowered = bin(BinOp::Pow, base, bin(BinOp::Sub, w.clone(), n(1.0)));
+    bin(BinOp::Mul, bin(BinOp::Mul, w.clone(), lowered), du)
+}
+
 /// The derivative of `e`; operands of `e` are assumed simplified.
 fn d(e: &Expr, w: Wrt) -> Expr {
     match e {
@@ -89,29 +110,31 @@ fn d(e: &Expr, w: Wrt) -> Expr {
                     if is_zero(&db) {
                         // Power rule n*u^(n-1)*u': no log of the base, so negative
                         // bases with integer exponents keep a finite derivative.
-                        let lowered =
-                            bin(BinOp::Pow, a.clone(), bin(BinOp::Sub, b.clone(), n(1.0)));
-                        bin(BinOp::Mul, bin(BinOp::Mul, b.clone(), lowered), da)
+                        power_slope(a, b, da)
                     } else if is_zero(a) {
                         // 0^w is piecewise constant in w (0, 1 or inf): no slope.
                         n(0.0)
                     } else {
                         // d(u^w) = w' u^w log u + w u^(w-1) u'. Written this way
                         // (not u^w (w' log u + w u'/u)) so that u = 0 gives a finite
-                        // slope where one exists: 0^w log 0 is 0·(−∞), so the log is
-                        // guarded as log(u + 0^|u|), which is log(u) for u ≠ 0 and
-                        // 0 at u = 0 (x^b at x = 0, found by fuzzing).
-                        let t1 = bin(
-                            BinOp::Mul,
-                            db,
-                            bin(BinOp::Mul, e.clone(), call(Func::Log, guard_zero(a))),
-                        );
+                        // slope where one exists. At u = 0, 0^w is 0 (w > 0) or ∞
+                        // (w < 0), constant in w either way, so the limit of the first
+                        // term is 0; in floating point it is 0·(−∞) or ∞·(−∞). Both
+                        // the power and the log are therefore taken of g = u + 0^|u|,
+                        // which is u for u ≠ 0 and 1 at u = 0: g^w·log g is exactly
+                        // u^w·log u elsewhere and 1·0 = 0 there (x^b at x = 0, found
+                        // by fuzzing; exp(−(x/e)^b) with b < 0 at a zero dose).
+                        let t1 = if matches!(a, Expr::Num(v) if *v > 0.0) {
+                            bin(BinOp::Mul, db, bin(BinOp::Mul, e.clone(), call(Func::Log, a.clone())))
+                        } else {
+                            let g = guard_zero(a);
+                            let gw = bin(BinOp::Pow, g.clone(), b.clone());
+                            bin(BinOp::Mul, db, bin(BinOp::Mul, gw, call(Func::Log, g)))
+                        };
                         let t2 = if is_zero(&da) {
                             n(0.0)
                         } else {
-                            let lowered =
-                                bin(BinOp::Pow, a.clone(), bin(BinOp::Sub, b.clone(), n(1.0)));
-                            bin(BinOp::Mul, bin(BinOp::Mul, b.clone(), lowered), da)
+                            power_slope(a, b, da)
                         };
                         bin(BinOp::Add, t1, t2)
                     }
@@ -148,7 +171,7 @@ mod tests {
         assert_eq!(dd("a*exp(-b*x)", "a"), "exp(-(b*x))");
         assert_eq!(dd("a*exp(-b*x)", "b"), "-(a*(exp(-(b*x))*x))");
         assert_eq!(dd("x^3", "x"), "3*x^2");
-        assert_eq!(dd("x^a", "a"), "x^a*log(x + 0^abs(x))");
+        assert_eq!(dd("x^a", "a"), "(x + 0^abs(x))^a*log(x + 0^abs(x))");
         assert_eq!(dd("2^a", "a"), "0.6931471805599453*2^a");
         assert_eq!(dd("log(x)", "x"), "1/x");
         assert_eq!(dd("sin(2*x)", "x"), "2*cos(2*x)");
@@ -187,6 +210,53 @@ mod tests {
         vals[a] = 1.5;
         vals[q.names.iter().position(|n| n == "b").unwrap()] = 2.5;
         assert_eq!(diff_param(&q.rhs, a).eval(&vals, &[]), 0.0);
+    }
+
+    /// A base that the data make vanish (u = x/e at x = 0, a zero-dose control)
+    /// has slopes evaluated by their limits: u^b ≡ 0 along that row for b > 0,
+    /// so every slope is 0 there, also for 0 < b < 1 where b·u^(b−1)·u′ is ∞·0.
+    #[test]
+    fn slopes_at_a_vanishing_base_are_their_limits() {
+        let p = parse_formula("(x/ed)^b").unwrap();
+        let idx = |s: &str| p.names.iter().position(|n| n == s).unwrap();
+        let (x, e, b) = (idx("x"), idx("ed"), idx("b"));
+        for bv in [0.3, 0.55, 1.0, 2.5] {
+            let mut vals = vec![0.0; 3];
+            vals[e] = 1.8;
+            vals[b] = bv;
+            for k in [e, b] {
+                assert_eq!(diff_param(&p.rhs, k).eval(&vals, &[]), 0.0, "b = {bv}");
+            }
+            // Elsewhere the ordinary power rule: d/de = −b·(x/e)^b/e.
+            vals[x] = 3.0;
+            let got = diff_param(&p.rhs, e).eval(&vals, &[]);
+            let want = -bv * (3.0f64 / 1.8).powf(bv) / 1.8;
+            assert!((got - want).abs() <= 1e-14 * want.abs(), "{got} vs {want}");
+        }
+        // A constant exponent in (0, 1) and sqrt: the same limit.
+        for text in ["(x/ed)^0.5", "sqrt(x/ed)", "abs(x/ed)"] {
+            let q = parse_formula(text).unwrap();
+            let e = q.names.iter().position(|n| n == "ed").unwrap();
+            let mut vals = vec![0.0; 2];
+            vals[e] = 1.8;
+            assert_eq!(diff_param(&q.rhs, e).eval(&vals, &[]), 0.0, "{text}");
+        }
+        // A negative exponent: (x/ed)^b = ∞ at x = 0, exp(−∞) = 0, constant in
+        // ed and b along that row, so both slopes are 0 (and d/dd is 0 too).
+        let w = parse_formula("d*exp(-(x/ed)^b)").unwrap();
+        let wi = |s: &str| w.names.iter().position(|n| n == s).unwrap();
+        let mut vals = vec![0.0; 4];
+        vals[wi("d")] = 2.0;
+        vals[wi("ed")] = 1.8;
+        vals[wi("b")] = -0.7;
+        for k in ["d", "ed", "b"] {
+            assert_eq!(diff_param(&w.rhs, wi(k)).eval(&vals, &[]), 0.0, "{k}");
+        }
+        // A genuinely infinite slope stays infinite: d/da (x − a)^0.5 at x = a.
+        let q = parse_formula("(x - a)^0.5").unwrap();
+        let a = q.names.iter().position(|n| n == "a").unwrap();
+        let vals = [1.0, 1.0];
+        assert_eq!(diff_param(&q.rhs, a).eval(&vals, &[]), f64::NEG_INFINITY);
     }
 
     /// Regression (found by fuzzing): the quotient rule over b^2 overflowed or

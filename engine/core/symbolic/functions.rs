@@ -156,6 +156,30 @@ pub fn facts(f: Func) -> FunctionFacts {
     }
 }
 
+/// `g + 0^(|u| + |u′|)`: exactly `g` wherever the argument `u` or its
+/// derivative `u′` is non-zero, and `g + 1` where both vanish.
+///
+/// Used as the divisor or base of a derivative factor that is singular at
+/// u = 0 (u^(w−1) with 0 < w < 1, 1/√u, 1/|u|): where the data make `u`
+/// vanish for every parameter value (u = x/e at x = 0), `u′ = 0` too, the
+/// function is identically 0 (or constant) along that row, and the slope's
+/// limit is 0; the floating-point product ∞·0 or quotient 0/0 would be NaN.
+/// With the guard the factor is finite there and the slope is `…·0 = 0`,
+/// while a genuinely infinite slope (u = 0, u′ ≠ 0) stays infinite. Written
+/// with the ordinary operators so that the compiled tape and tree evaluation
+/// agree bit for bit, and `0^w` differentiates to 0 (no slope of its own).
+pub fn vanishing_guard(g: Expr, u: &Expr, du: &Expr) -> Expr {
+    if matches!(u, Expr::Num(v) if *v != 0.0) || matches!(du, Expr::Num(v) if *v != 0.0) {
+        return g;
+    }
+    let size = bin(
+        BinOp::Add,
+        call(Func::Abs, u.clone()),
+        call(Func::Abs, du.clone()),
+    );
+    bin(BinOp::Add, g, bin(BinOp::Pow, Expr::Num(0.0), size))
+}
+
 /// `d f(u)` by the chain rule: `f′(u)·u′`, where `fu` is the node `f(u)` itself
 /// and `du` is `u′`, built through the simplifying constructors. The forms reuse
 /// `f(u)` where it serves (exp′ = exp, tan′ = 1 + tan², tanh′ = 1 − tanh²) and
@@ -168,9 +192,18 @@ pub fn derivative(f: Func, u: &Expr, fu: &Expr, du: Expr) -> Expr {
         Func::Exp => times(fu.clone()),
         Func::Log => bin(BinOp::Div, du.clone(), u.clone()),
         Func::Log10 => bin(BinOp::Div, du.clone(), bin(BinOp::Mul, n(LN_10), u.clone())),
-        Func::Sqrt => bin(BinOp::Div, du.clone(), bin(BinOp::Mul, n(2.0), fu.clone())),
-        // abs'(u) = sign(u) = u/|u|
-        Func::Abs => times(bin(BinOp::Div, u.clone(), fu.clone())),
+        // u′/(2√u), with √u guarded where u and u′ vanish together (limit 0).
+        Func::Sqrt => bin(
+            BinOp::Div,
+            du.clone(),
+            bin(BinOp::Mul, n(2.0), vanishing_guard(fu.clone(), u, &du)),
+        ),
+        // abs'(u) = sign(u) = u/|u|, with |u| guarded as for sqrt.
+        Func::Abs => times(bin(
+            BinOp::Div,
+            u.clone(),
+            vanishing_guard(fu.clone(), u, &du),
+        )),
         Func::Sin => times(call(Func::Cos, u.clone())),
         Func::Cos => neg(times(call(Func::Sin, u.clone()))),
         Func::Tan => times(bin(BinOp::Add, n(1.0), sq(fu.clone()))),

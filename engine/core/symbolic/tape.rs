@@ -502,6 +502,46 @@ mod tests {
         }
     }
 
+    /// The limit guards of zero-base derivatives (`functions::vanishing_guard`)
+    /// are ordinary operators, so tape and tree agree there too, at x = 0 included.
+    #[test]
+    fn matches_tree_walking_bitwise_at_vanishing_bases() {
+        let p = parse_formula("c + (d - c)/(1 + (x/ed)^b) + d*exp(-(x/ed)^b) + sqrt(ed*x) + abs(x*ed)")
+            .unwrap();
+        let x_idx = p.names.iter().position(|n| n == "x").unwrap();
+        let f = p.rhs.map(&|e| match e {
+            Expr::Param(i) if *i == x_idx => Some(Expr::Var(0)),
+            Expr::Param(i) if *i > x_idx => Some(Expr::Param(*i - 1)),
+            _ => None,
+        });
+        let mut outs = vec![f.clone()];
+        outs.extend((0..4).map(|k| diff_param(&f, k)));
+        let tape = Tape::compile(&outs);
+        let mut xs: Vec<f64> = vec![0.0, -0.0, 0.0];
+        xs.extend((0..300).map(|i| 0.013 * i as f64));
+        for params in [
+            [0.1, 1.9, 1.8, 0.55],
+            [1.9, 0.1, 0.7, 3.0],
+            [0.0, 1.0, 2.0, 0.3],
+            [0.2, 1.5, 2.0, -0.8],
+        ] {
+            let got = tape.eval_columns(&params, &[&xs], xs.len());
+            for (k, e) in outs.iter().enumerate() {
+                for (i, &x) in xs.iter().enumerate() {
+                    let want = e.eval(&params, &[x]);
+                    let g = got[k][i];
+                    assert!(
+                        g.to_bits() == want.to_bits() || (g.is_nan() && want.is_nan()),
+                        "output {k} row {i}: {g} vs {want}"
+                    );
+                    if x == 0.0 {
+                        assert!(g.is_finite(), "output {k} at x = 0 with {params:?}: {g}");
+                    }
+                }
+            }
+        }
+    }
+
     #[test]
     fn shares_subexpressions_and_hoists_parameters() {
         // exp(-b*x) appears in f and both derivatives; -b and p-only parts are scalar.
