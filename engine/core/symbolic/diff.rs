@@ -125,7 +125,11 @@ fn d(e: &Expr, w: Wrt) -> Expr {
                         // u^w·log u elsewhere and 1·0 = 0 there (x^b at x = 0, found
                         // by fuzzing; exp(−(x/e)^b) with b < 0 at a zero dose).
                         let t1 = if matches!(a, Expr::Num(v) if *v > 0.0) {
-                            bin(BinOp::Mul, db, bin(BinOp::Mul, e.clone(), call(Func::Log, a.clone())))
+                            bin(
+                                BinOp::Mul,
+                                db,
+                                bin(BinOp::Mul, e.clone(), call(Func::Log, a.clone())),
+                            )
                         } else {
                             let g = guard_zero(a);
                             let gw = bin(BinOp::Pow, g.clone(), b.clone());

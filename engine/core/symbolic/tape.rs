@@ -506,8 +506,9 @@ mod tests {
     /// are ordinary operators, so tape and tree agree there too, at x = 0 included.
     #[test]
     fn matches_tree_walking_bitwise_at_vanishing_bases() {
-        let p = parse_formula("c + (d - c)/(1 + (x/ed)^b) + d*exp(-(x/ed)^b) + sqrt(ed*x) + abs(x*ed)")
-            .unwrap();
+        let p =
+            parse_formula("c + (d - c)/(1 + (x/ed)^b) + d*exp(-(x/ed)^b) + sqrt(ed*x) + abs(x*ed)")
+                .unwrap();
         let x_idx = p.names.iter().position(|n| n == "x").unwrap();
         let f = p.rhs.map(&|e| match e {
             Expr::Param(i) if *i == x_idx => Some(Expr::Var(0)),
