@@ -72,9 +72,9 @@ impl Model {
 
     /// Binds an already parsed formula. Parameters are listed in order of
     /// first appearance in the formula's text (`vmax*x/(km + x)` gives vmax,
-    /// km; `b1 + b10*x + b2*x^2` gives b1, b10, b2). Two names cannot first
-    /// appear at the same place, so no tie can arise; natural order (b2
-    /// before b10) would break one.
+    /// km; `b1 + b10*x + b2*x^2` gives b1, b10, b2). No two names first
+    /// appear at the same place, so the order is total and needs no
+    /// tie-break (such as natural order, b2 before b10).
     pub fn bind(
         text: &str,
         parsed: ParsedFormula,
@@ -150,15 +150,8 @@ impl Model {
                 &params.iter().collect::<Vec<_>>(),
             )));
         }
-        // `parsed.names` holds each name at its first appearance, left to
-        // right, so `params` is already in order of first appearance; the
-        // stable sort keeps it and orders only equal positions naturally.
-        let first_at = |n: &String| parsed.names.iter().position(|m| m == n);
-        params.sort_by(|a, b| {
-            first_at(a)
-                .cmp(&first_at(b))
-                .then_with(|| natural_cmp(a, b))
-        });
+        // `params` follows `parsed.names`, which the parser fills with each
+        // name at its first appearance, left to right: no sort is needed.
         let rename = |e: &Expr| -> Option<Expr> {
             if let Expr::Param(i) = e {
                 let n = &parsed.names[*i];
@@ -191,15 +184,14 @@ impl Model {
     /// then any others in their present order; `Expr::Param` indices are
     /// renumbered to match, so the model computes the same values.
     pub fn with_param_order(mut self, order: &[&str]) -> Model {
-        let mut params: Vec<String> = order
-            .iter()
-            .filter(|n| self.params.iter().any(|p| p == *n))
+        let mut params: Vec<String> = Vec::with_capacity(self.params.len());
+        let listed = order.iter().filter(|n| self.params.iter().any(|p| p == *n));
+        for p in listed
             .map(|n| n.to_string())
-            .collect();
-        params.dedup();
-        for p in &self.params {
-            if !params.contains(p) {
-                params.push(p.clone());
+            .chain(self.params.iter().cloned())
+        {
+            if !params.contains(&p) {
+                params.push(p);
             }
         }
         let new_index: Vec<usize> = self
@@ -235,39 +227,6 @@ impl Model {
 
 fn join(v: &[&String]) -> String {
     v.iter().map(|s| s.as_str()).collect::<Vec<_>>().join(", ")
-}
-
-/// Orders names so that embedded numbers compare by value: b2 < b10.
-pub fn natural_cmp(a: &str, b: &str) -> std::cmp::Ordering {
-    fn split(s: &str) -> Vec<(String, Option<u64>)> {
-        let mut out = Vec::new();
-        let mut cur = String::new();
-        let mut digits = false;
-        for c in s.chars() {
-            if c.is_ascii_digit() != digits && !cur.is_empty() {
-                let n = if digits { cur.parse().ok() } else { None };
-                out.push((std::mem::take(&mut cur), n));
-            }
-            digits = c.is_ascii_digit();
-            cur.push(c);
-        }
-        if !cur.is_empty() {
-            let n = if digits { cur.parse().ok() } else { None };
-            out.push((cur, n));
-        }
-        out
-    }
-    let (sa, sb) = (split(a), split(b));
-    for (x, y) in sa.iter().zip(sb.iter()) {
-        let o = match (x.1, y.1) {
-            (Some(p), Some(q)) => p.cmp(&q).then_with(|| x.0.cmp(&y.0)),
-            _ => x.0.cmp(&y.0),
-        };
-        if o != std::cmp::Ordering::Equal {
-            return o;
-        }
-    }
-    sa.len().cmp(&sb.len())
 }
 
 #[cfg(test)]
@@ -324,8 +283,9 @@ mod tests {
         let r = m.with_param_order(&["bottom", "top", "mid", "slope"]);
         assert_eq!(r.params, vec!["bottom", "top", "mid", "slope"]);
         assert_eq!(at(&r, 1.1, &truth), before);
-        // Names not listed follow in their present order; unknown ones are ignored.
-        let r = r.with_param_order(&["slope", "nothing"]);
+        // Names not listed follow in their present order; unknown and
+        // repeated ones are ignored.
+        let r = r.with_param_order(&["slope", "nothing", "bottom", "slope"]);
         assert_eq!(r.params, vec!["slope", "bottom", "top", "mid"]);
         assert_eq!(at(&r, 1.1, &truth), before);
     }
