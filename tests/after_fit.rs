@@ -54,7 +54,11 @@ fn delta_method_matches_finite_differences() {
     let (x, y) = decay();
     let (pr, res, s) = fit("a*exp(-k*x)", &x, &y, &[8.0, 0.3]);
     let cov = covariance_matrix(&s);
-    for text in ["t_half = log(2)/k", "area = a/k", "y3 = a*exp(-3*k) + sqrt(a)*k^2"] {
+    for text in [
+        "t_half = log(2)/k",
+        "area = a/k",
+        "y3 = a*exp(-3*k) + sqrt(a)*k^2",
+    ] {
         let d = parse_derived(text, &pr.model.params).unwrap();
         let q = derive(&d, &res.params, &cov, s.dof, 0.95).unwrap();
         let mut g = vec![0.0; 2];
@@ -67,7 +71,10 @@ fn delta_method_matches_finite_differences() {
             *gk = (d.expr.eval(&up, &[]) - d.expr.eval(&dn, &[])) / (2.0 * h);
         }
         let se_fd = quadratic_form(&cov, &g).sqrt();
-        println!("{text}: estimate {:.9} se {:.9} (finite differences {:.9})", q.estimate, q.std_error, se_fd);
+        println!(
+            "{text}: estimate {:.9} se {:.9} (finite differences {:.9})",
+            q.estimate, q.std_error, se_fd
+        );
         assert!(
             ((q.std_error - se_fd) / se_fd).abs() < 1e-6,
             "{text}: {} vs {}",
@@ -114,19 +121,30 @@ fn strd_covariance_diagonal_is_certified_standard_errors() {
 #[test]
 fn profile_of_a_linear_model_is_the_t_interval() {
     let (x, y) = line_data();
-    for (formula, start) in [("a + b*x", vec![0.0, 1.0]), ("a + b*x + c*x^2", vec![0.0, 1.0, 0.0])] {
+    for (formula, start) in [
+        ("a + b*x", vec![0.0, 1.0]),
+        ("a + b*x + c*x^2", vec![0.0, 1.0, 0.0]),
+    ] {
         let (pr, res, s) = fit(formula, &x, &y, &start);
         let t = t_quantile(0.975, s.dof as f64);
         for k in 0..res.params.len() {
             let prof = profile_parameter(&pr, &res, &s, k, &ProfileOptions::default()).unwrap();
             let se = s.parameters[k].std_error;
             let (lo, hi) = (prof.lower.unwrap(), prof.upper.unwrap());
-            println!("{formula} {}: profile [{lo:.10}, {hi:.10}]  t interval [{:.10}, {:.10}]", prof.name, res.params[k] - t * se, res.params[k] + t * se);
+            println!(
+                "{formula} {}: profile [{lo:.10}, {hi:.10}]  t interval [{:.10}, {:.10}]",
+                prof.name,
+                res.params[k] - t * se,
+                res.params[k] + t * se
+            );
             assert!((lo - (res.params[k] - t * se)).abs() < 1e-6 * se);
             assert!((hi - (res.params[k] + t * se)).abs() < 1e-6 * se);
             // The trace is τ = (θ − θ̂)/se along the way.
             for pt in &prof.trace {
-                assert!((pt.tau - (pt.value - res.params[k]) / se).abs() < 1e-5, "{pt:?}");
+                assert!(
+                    (pt.tau - (pt.value - res.params[k]) / se).abs() < 1e-5,
+                    "{pt:?}"
+                );
             }
         }
     }
@@ -146,7 +164,9 @@ fn profile_of_a_nonlinear_model_matches_brute_force_grid() {
         let prof = profile_parameter(&pr, &res, &s, k, &ProfileOptions::default()).unwrap();
         let (est, se) = (res.params[k], s.parameters[k].std_error);
         let free_start = res.params[1 - k];
-        let grid: Vec<f64> = (0..=1200).map(|i| est - 6.0 * se + 12.0 * se * i as f64 / 1200.0).collect();
+        let grid: Vec<f64> = (0..=1200)
+            .map(|i| est - 6.0 * se + 12.0 * se * i as f64 / 1200.0)
+            .collect();
         let tau: Vec<f64> = grid
             .iter()
             .map(|&v| {
@@ -245,17 +265,26 @@ fn inverse_prediction_recovers_x_and_inverts_the_band() {
     let qc = (y0 - a).powi(2) - k2 * (1.0 / m + 1.0 / n + xbar * xbar / sxx);
     let disc = (qb * qb - 4.0 * qa * qc).sqrt();
     let (r1, r2) = ((-qb - disc) / (2.0 * qa), (-qb + disc) / (2.0 * qa));
-    println!("line: x̂ {:.9} interval [{:?}, {:?}] closed form [{r1:.9}, {r2:.9}]", inv.x, inv.x_low, inv.x_high);
+    println!(
+        "line: x̂ {:.9} interval [{:?}, {:?}] closed form [{r1:.9}, {r2:.9}]",
+        inv.x, inv.x_low, inv.x_high
+    );
     assert!((inv.x - (y0 - a) / b).abs() < 1e-10);
     assert!((inv.x_low.unwrap() - r1.min(r2)).abs() < 1e-9);
     assert!((inv.x_high.unwrap() - r1.max(r2)).abs() < 1e-9);
 
     // A curve that turns within the data range is refused.
     let xs: Vec<f64> = (0..9).map(|i| i as f64).collect();
-    let ys: Vec<f64> = xs.iter().map(|v| 1.0 + 2.0 * v - 0.25 * v * v + 0.01 * (v * 7.0).sin()).collect();
+    let ys: Vec<f64> = xs
+        .iter()
+        .map(|v| 1.0 + 2.0 * v - 0.25 * v * v + 0.01 * (v * 7.0).sin())
+        .collect();
     let (pr, res, s) = fit("a + b*x + c*x^2", &xs, &ys, &[0.0, 1.0, 0.0]);
     let curve = FittedCurve::new(&pr, &res.params, covariance_matrix(&s), &s);
-    assert!(matches!(curve.inverse(&[3.0], 0.95), Err(PredictError::NotMonotone { .. })));
+    assert!(matches!(
+        curve.inverse(&[3.0], 0.95),
+        Err(PredictError::NotMonotone { .. })
+    ));
 }
 
 /// Extra-sum-of-squares F test, line nested in a quadratic, invented data;
@@ -264,15 +293,66 @@ fn inverse_prediction_recovers_x_and_inverts_the_band() {
 #[test]
 fn extra_sum_of_squares_f_test_matches_scipy() {
     let x = [0.5, 1.0, 1.5, 2.0, 2.5, 3.0, 3.5, 4.0, 4.5, 5.0, 5.5, 6.0];
-    let y = [1.92, 2.61, 3.05, 3.72, 4.01, 4.35, 4.88, 5.02, 5.31, 5.47, 5.80, 5.84];
+    let y = [
+        1.92, 2.61, 3.05, 3.72, 4.01, 4.35, 4.88, 5.02, 5.31, 5.47, 5.80, 5.84,
+    ];
     let (_, r, sr) = fit("a + b*x", &x, &y, &[0.0, 1.0]);
     let (_, f, sf) = fit("a + b*x + c*x^2", &x, &y, &[0.0, 1.0, 0.0]);
     assert!((r.ssr - 0.77881002331002325).abs() < 1e-12);
     assert!((f.ssr - 0.060946253746254224).abs() < 1e-12);
     let test = extra_sum_of_squares(r.ssr, sr.dof, f.ssr, sf.dof).unwrap();
-    println!("F = {:.12} on ({}, {}), p = {:.12e}", test.f, test.df_num, test.df_den, test.p_value);
+    println!(
+        "F = {:.12} on ({}, {}), p = {:.12e}",
+        test.f, test.df_num, test.df_den, test.p_value
+    );
     assert_eq!((test.df_num, test.df_den), (1, 9));
     assert!((test.f / 106.00772859596809 - 1.0).abs() < 1e-9);
     assert!((test.p_value / 2.8053909048235239e-06 - 1.0).abs() < 1e-8);
     assert!((f_upper_tail(2.7, 3.0, 11.0) / 0.096908119472384882 - 1.0).abs() < 1e-10);
+}
+
+/// A side where τ never reaches t is reported open: for a rise to a plateau
+/// observed only near the plateau, S(k) tends to a finite limit as k → ∞
+/// (checked here by a fit with k written in as 1e3), and that limit lies
+/// below S(k̂) + t²s², so no finite upper end exists.
+#[test]
+fn profile_reports_an_open_side() {
+    let x = [1.0, 2.0, 3.0, 4.0, 5.0, 6.0];
+    let y = [4.3, 5.6, 4.7, 5.4, 4.6, 5.3];
+    let (pr, res, s) = fit("a*(1 - exp(-k*x))", &x, &y, &[5.0, 1.5]);
+    let t = t_quantile(0.975, s.dof as f64);
+    let (_, far, _) = fit("a*(1 - exp(-1000*x))", &x, &y, &[5.0]);
+    let limit = (far.ssr - res.ssr).sqrt() / s.residual_sd;
+    println!(
+        "k̂ = {:.6}, τ(k → ∞) ≈ {limit:.4}, t = {t:.4}",
+        res.params[1]
+    );
+    assert!(limit < t, "the data were meant to leave k open above");
+    let prof = profile_parameter(&pr, &res, &s, 1, &ProfileOptions::default()).unwrap();
+    println!(
+        "k: lower {:?} ({:?}), upper {:?} ({:?})",
+        prof.lower, prof.lower_open, prof.upper, prof.upper_open
+    );
+    assert_eq!(prof.upper, None);
+    assert!(prof.upper_open.is_some());
+    // The trace is sorted and passes through the estimate with τ = 0.
+    assert!(prof.trace.windows(2).all(|w| w[0].value < w[1].value));
+    assert!(prof
+        .trace
+        .iter()
+        .any(|p| p.value == res.params[1] && p.tau == 0.0));
+}
+
+/// A one-parameter model profiles by evaluating S directly (nothing to refit);
+/// y = b·x is linear, so the interval is b̂ ± t·se (Bates & Watts 1988, §6.1.2).
+#[test]
+fn profile_of_a_one_parameter_model() {
+    let (x, y) = line_data();
+    let (pr, res, s) = fit("b*x", &x, &y, &[1.0]);
+    let prof = profile_parameter(&pr, &res, &s, 0, &ProfileOptions::default()).unwrap();
+    let t = t_quantile(0.975, s.dof as f64);
+    let se = s.parameters[0].std_error;
+    assert!((prof.lower.unwrap() - (res.params[0] - t * se)).abs() < 1e-6 * se);
+    assert!((prof.upper.unwrap() - (res.params[0] + t * se)).abs() < 1e-6 * se);
+    assert!(profile_parameter(&pr, &res, &s, 1, &ProfileOptions::default()).is_err());
 }

@@ -128,9 +128,10 @@ impl FittedCurve {
             .x
             .iter()
             .map(|c| {
-                c.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
-                    (a.min(v), b.max(v))
-                })
+                c.iter()
+                    .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+                        (a.min(v), b.max(v))
+                    })
             })
             .collect();
         FittedCurve {
@@ -255,7 +256,10 @@ impl FittedCurve {
         {
             return Err(PredictError::NotMonotone { x_min, x_max });
         }
-        let (y_min, y_max) = (fy[0].min(fy[INVERSE_GRID - 1]), fy[0].max(fy[INVERSE_GRID - 1]));
+        let (y_min, y_max) = (
+            fy[0].min(fy[INVERSE_GRID - 1]),
+            fy[0].max(fy[INVERSE_GRID - 1]),
+        );
         if !(y_min..=y_max).contains(&y0) {
             return Err(PredictError::OutsideRange {
                 y0,
@@ -283,9 +287,7 @@ impl FittedCurve {
             let (v, s) = self.values_and_se(&[&[x]], 1);
             band(v[0], s[0])
         };
-        let hg: Vec<f64> = (0..INVERSE_GRID)
-            .map(|i| band(fy[i], se[i]))
-            .collect();
+        let hg: Vec<f64> = (0..INVERSE_GRID).map(|i| band(fy[i], se[i])).collect();
         let (x_low, x_high) = if t.is_finite() && self.residual_sd.is_finite() {
             // Walk outwards from the root's cell to the first grid point outside the band.
             let low = (0..=cell)

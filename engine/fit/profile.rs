@@ -15,8 +15,9 @@
 //! steps that start at se_k/4 and are rescaled to aim at Δτ ≈ 0.25 per step
 //! (factor clamped to [½, 4]), each refit starting from the previous
 //! conditional optimum; tracing stops when |τ| ≥ t + 0.5, after
-//! `max_steps`, or when a refit fails. The interval end is then refined by
-//! the Illinois false-position method on |τ(θ)| − t = 0 within the bracketing
+//! `max_steps`, beyond [`MAX_REACH`] standard errors, or when a refit fails.
+//! The interval end is then refined by the Illinois false-position method
+//! on |τ(θ)| − t = 0 within the bracketing
 //! steps, stopping when the bracket is below 1e-10·(|θ̂_k| + se_k) wide or
 //! after 100 refits. A side where |τ| never reaches t is reported open.
 //!
@@ -30,6 +31,11 @@ use super::Residuals;
 use nalgebra::DMatrix;
 use serde::Serialize;
 use thiserror::Error;
+
+/// Farthest a profile steps from the estimate, in standard errors: a side
+/// still below t there is reported open (our bound; beyond it the linearised
+/// scale says nothing and the values are useless for a plot).
+pub const MAX_REACH: f64 = 1000.0;
 
 /// Why a parameter cannot be profiled.
 #[derive(Debug, Clone, PartialEq, Error)]
@@ -89,7 +95,7 @@ pub struct ParamProfile {
     pub lower: Option<f64>,
     /// Upper end; `None` when τ never rose to t_crit (open above).
     pub upper: Option<f64>,
-    /// Why the lower side is open: `not_reached` (steps used up while |τ| < t)
+    /// Why the lower side is open: `not_reached` (steps or reach used up while |τ| < t)
     /// or `refit_failed` (a conditional fit did not converge or was not finite).
     pub lower_open: Option<&'static str>,
     pub upper_open: Option<&'static str>,
@@ -195,9 +201,8 @@ pub fn profile_parameter(
     let tau_stop = t_crit + 0.5;
     let mut lowest = s_hat;
     let free0: Vec<f64> = (0..p).filter(|&i| i != k).map(|i| fit.params[i]).collect();
-    let tau_of = |v: f64, ssr: f64| -> f64 {
-        (v - theta_hat).signum() * (ssr - s_hat).max(0.0).sqrt() / s
-    };
+    let tau_of =
+        |v: f64, ssr: f64| -> f64 { (v - theta_hat).signum() * (ssr - s_hat).max(0.0).sqrt() / s };
 
     let mut trace = vec![ProfilePoint {
         value: theta_hat,
@@ -214,6 +219,9 @@ pub fn profile_parameter(
         for _ in 0..opts.max_steps {
             let (v0, a0, q0) = pts.last().cloned().unwrap_or_default();
             let v = v0 + dir * step;
+            if !v.is_finite() || (v - theta_hat).abs() > MAX_REACH * se {
+                break;
+            }
             let Some((q, ssr)) = conditional(problem, k, v, &q0, &opts.lm) else {
                 failed = true;
                 break;
@@ -241,9 +249,25 @@ pub fn profile_parameter(
         match pts.iter().position(|pt| pt.1 >= t_crit) {
             Some(i) => {
                 let (lo, hi) = (&pts[i - 1], &pts[i]);
-                bounds[side] = Some(refine(problem, k, lo, hi, t_crit, &tau_of, opts, se + theta_hat.abs(), &mut lowest));
+                bounds[side] = Some(refine(
+                    problem,
+                    k,
+                    lo,
+                    hi,
+                    t_crit,
+                    &tau_of,
+                    opts,
+                    se + theta_hat.abs(),
+                    &mut lowest,
+                ));
             }
-            None => open[side] = Some(if failed { "refit_failed" } else { "not_reached" }),
+            None => {
+                open[side] = Some(if failed {
+                    "refit_failed"
+                } else {
+                    "not_reached"
+                })
+            }
         }
     }
     trace.sort_by(|a, b| a.value.total_cmp(&b.value));
@@ -290,7 +314,11 @@ fn refine(
         } else {
             0.5 * (a + b)
         };
-        let start = if (c - a).abs() < (c - b).abs() { &qa } else { &qb };
+        let start = if (c - a).abs() < (c - b).abs() {
+            &qa
+        } else {
+            &qb
+        };
         let Some((q, ssr)) = conditional(problem, k, c, start, &opts.lm) else {
             break;
         };
