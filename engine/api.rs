@@ -206,7 +206,8 @@ mod tests {
             ..SearchOptions::default()
         };
         let ranked = rank(&cols, "y = c + a*exp(-k*t)", &opts).unwrap();
-        assert_eq!(ranked.candidates_tried, 12);
+        // a ceiling: exact data settle once further starts return to the inferred minimum
+        assert!((4..=12).contains(&ranked.candidates_tried));
         let best = ranked.best().unwrap();
         assert_eq!(best.rank, 1);
         assert!((best.params[2] - 0.4).abs() < 1e-6, "{:?}", best.params);

@@ -68,7 +68,25 @@ pub fn scale_from_range(r: &ScanRange, start: f64) -> ParamScale {
     }
 }
 
-/// Inference followed by the ranked multistart search over its candidates.
+/// Noise standard deviation of one row: the features read the noise from the
+/// identity view, whose points average the rows that share an x, so with r
+/// rows per point on average (in the rows it read) it is the single-row level
+/// divided by √r.
+pub fn row_noise(inf: &Inference) -> f64 {
+    let Some(view) = inf.features.views.first() else {
+        return inf.features.noise;
+    };
+    let points = view.view.counts.len();
+    if points == 0 {
+        return inf.features.noise;
+    }
+    let per_point = view.view.counts.iter().sum::<usize>() as f64 / points as f64;
+    inf.features.noise * per_point.max(1.0).sqrt()
+}
+
+/// Inference followed by the ranked multistart search over its candidates;
+/// the search stops early when the inferred start fits to the data's noise
+/// level and further starts keep returning to it (`--starts` is a ceiling).
 pub fn infer_and_search(
     problem: &Problem,
     opts: &SearchOptions,
@@ -84,6 +102,12 @@ pub fn infer_and_search(
         .collect();
     let symmetries = find_symmetries(&problem.model);
     let mut opts = opts.clone();
+    // Stop early once the inferred start fits to the noise level (one
+    // predictor only: with more, the noise read along the first one also holds
+    // the others' effects).
+    if opts.noise_sd.is_none() && problem.x.len() == 1 {
+        opts.noise_sd = Some(row_noise(&inf));
+    }
     opts.sign_flips = find_sign_flips(&problem.model);
     opts.signed_swaps = find_signed_swaps(&problem.model);
     let mut outcome = search(

@@ -13,6 +13,9 @@ pub enum Error {
     Problem(#[from] crate::fit::problem::ProblemError),
     #[error("{0}")]
     Usage(String),
+    /// A result that could not be written (standard output or a file).
+    #[error(transparent)]
+    Write(#[from] crate::report::atomic::WriteError),
 }
 
 /// Result with the engine's error.

@@ -54,6 +54,8 @@ struct Case {
     wants: Vec<String>,
     shape: Shape,
     code: i32,
+    /// Standard output goes to /dev/full (every write fails: no space left).
+    stdout_full: bool,
 }
 
 fn case(name: &str, args: &[&str], file: Option<&[u8]>, wants: &[&str]) -> Case {
@@ -65,6 +67,7 @@ fn case(name: &str, args: &[&str], file: Option<&[u8]>, wants: &[&str]) -> Case 
         wants: wants.iter().map(|s| s.to_string()).collect(),
         shape: Shape::OneLine,
         code: 2,
+        stdout_full: false,
     }
 }
 
@@ -91,6 +94,12 @@ fn with_shape(mut c: Case, shape: Shape) -> Case {
 
 fn with_stdin(mut c: Case, stdin: Stdin) -> Case {
     c.stdin = stdin;
+    c
+}
+
+/// The case with standard output on /dev/full.
+fn to_full(mut c: Case) -> Case {
+    c.stdout_full = true;
     c
 }
 
@@ -530,6 +539,21 @@ fn matrix() -> Vec<Case> {
                 "did you mean michaelis-menten?",
             ],
         ),
+        fit(
+            "library name written with '_'",
+            GOOD,
+            "michaelis_menten",
+            &[],
+            &[
+                "'michaelis_menten' is not a model",
+                "did you mean michaelis-menten?",
+            ],
+        ),
+        formula(
+            "'~' instead of '='",
+            "y ~ a*x",
+            &["unexpected character '~'", "write '='", "at character 3"],
+        ),
         // ---- starting values ----
         fit(
             "--start names no parameter",
@@ -620,6 +644,64 @@ fn matrix() -> Vec<Case> {
             "a*x",
             &["--start", "a=1", "--out", "{dir}/missing/out.txt"],
             &["cannot write", "missing/out.txt"],
+        ),
+        // ---- output that cannot be written ----
+        to_full(case(
+            "models to a full standard output",
+            &["models"],
+            None,
+            &["cannot write standard output", "No space left on device"],
+        )),
+        to_full(fit(
+            "fit to a full standard output",
+            GOOD,
+            "a*x",
+            &["--start", "a=1"],
+            &["cannot write standard output", "No space left on device"],
+        )),
+        to_full(case(
+            "infer to a full standard output",
+            &["infer", "{file}", "--model", "a*x + b"],
+            Some(GOOD),
+            &["cannot write standard output", "No space left on device"],
+        )),
+        to_full(case(
+            "rank to a full standard output",
+            &["rank", "{file}", "--model", "a*x + b", "--starts", "4"],
+            Some(GOOD),
+            &["cannot write standard output", "No space left on device"],
+        )),
+        to_full(case(
+            "report to a full standard output",
+            &["report", "{file}", "--model", "a*x + b"],
+            Some(GOOD),
+            &["cannot write standard output", "No space left on device"],
+        )),
+        to_full(case(
+            "batch fit to a full standard output",
+            &["fit", "{file}", "--model", "a*x", "--by", "g"],
+            Some(b"g,x,y\nA,1,2\nA,2,4.1\nB,1,3\nB,2,5.9\n"),
+            &["cannot write standard output", "No space left on device"],
+        )),
+        fit(
+            "--out on a full device",
+            GOOD,
+            "a*x",
+            &["--start", "a=1", "--out", "/dev/full"],
+            &["cannot write /dev/full", "No space left on device"],
+        ),
+        case(
+            "report --out on a full device",
+            &["report", "{file}", "--model", "a*x", "--out", "/dev/full"],
+            Some(GOOD),
+            &["cannot write /dev/full", "No space left on device"],
+        ),
+        fit(
+            "--by column named like a summary column",
+            b"status,x,y\nA,1,2\nA,2,4.1\nB,1,3\nB,2,5.9\n",
+            "a*x",
+            &["--by", "status"],
+            &["--by status", "already one of its own columns"],
         ),
         case(
             "rank --by",
@@ -728,11 +810,20 @@ fn run_case(c: &Case, dir: &Path, file: &Path) -> Run {
         None => Command::new(env!("CARGO_BIN_EXE_foothold")),
     };
     let clock = Instant::now();
+    let stdout = if c.stdout_full {
+        let full = std::fs::OpenOptions::new()
+            .write(true)
+            .open("/dev/full")
+            .expect("/dev/full (Linux) is needed by the output cases");
+        Stdio::from(full)
+    } else {
+        Stdio::piped()
+    };
     let mut child: Child = cmd
         .current_dir(env!("CARGO_MANIFEST_DIR"))
         .args(&args)
         .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
+        .stdout(stdout)
         .stderr(Stdio::piped())
         .spawn()
         .expect("the binary starts");
@@ -751,11 +842,13 @@ fn run_case(c: &Case, dir: &Path, file: &Path) -> Run {
             std::thread::spawn(move || write_endless(stdin, total))
         }
     };
-    let mut out_pipe = child.stdout.take().unwrap();
+    let out_pipe = child.stdout.take();
     let mut err_pipe = child.stderr.take().unwrap();
     let out_reader = std::thread::spawn(move || {
         let mut v = Vec::new();
-        let _ = out_pipe.read_to_end(&mut v);
+        if let Some(mut p) = out_pipe {
+            let _ = p.read_to_end(&mut v);
+        }
         v
     });
     let err_reader = std::thread::spawn(move || {

@@ -54,7 +54,7 @@ fn creep_specimens_fit_one_curve_each() {
     let lines: Vec<&str> = csv.lines().collect();
     assert_eq!(
         lines[0],
-        "group,status,n_obs,iterations,ssr,e0_estimate,e0_std_error,a_estimate,a_std_error,m_estimate,m_std_error,e0_identifiable,a_identifiable,m_identifiable,message",
+        "specimen,status,n_obs,iterations,ssr,e0_estimate,e0_std_error,a_estimate,a_std_error,m_estimate,m_std_error,e0_identifiable,a_identifiable,m_identifiable,message",
         "parameter columns in order of first appearance in the formula"
     );
     assert_eq!(lines.len(), 4, "{csv}");
@@ -92,14 +92,14 @@ fn a_failing_group_does_not_stop_the_others() {
     assert_eq!(code, 1, "one group failed: {err}");
     assert!(err.contains("group batch = 3: failed"), "{err}");
     assert!(
-        err.contains("1 of 3 groups did not converge (batch = 3)"),
+        err.contains("foothold: error: 1 of 3 groups failed (batch = 3)\n"),
         "{err}"
     );
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     let groups = v["groups"].as_array().unwrap();
     let keys: Vec<&str> = groups
         .iter()
-        .map(|g| g["group"].as_str().unwrap())
+        .map(|g| g["batch"].as_str().unwrap())
         .collect();
     assert_eq!(keys, vec!["7", "3", "5"], "order of first appearance");
     assert_eq!(groups[1]["status"], "failed");
@@ -109,6 +109,9 @@ fn a_failing_group_does_not_stop_the_others() {
         groups[1]
     );
     assert!(groups[1]["parameters"][0]["estimate"].is_null());
+    // The failed group had two rows: its row count says so.
+    assert_eq!(groups[1]["n_obs"], 2);
+    assert!(groups.iter().all(|g| g.get("group").is_none()), "keyed by --by");
     for (g, a, k) in [(0, 10.0, 0.3), (2, 4.0, 0.8)] {
         assert_eq!(groups[g]["status"], "converged");
         assert_eq!(groups[g]["n_obs"], 12);
@@ -243,7 +246,7 @@ fn text_labels_and_no_starts_fit_every_compound() {
     ];
     assert_eq!(groups.len(), want.len());
     for (g, (name, plateau, x_half, rate)) in groups.iter().zip(want) {
-        assert_eq!(g["group"], name, "order of first appearance");
+        assert_eq!(g["compound"], name, "order of first appearance");
         assert_eq!(g["status"], "converged", "{g}");
         assert_eq!(g["n_obs"], 22);
         let p = g["parameters"].as_array().unwrap();
@@ -375,7 +378,7 @@ fn four_parameter_logistic_reads_every_curve_the_same_way_round() {
         let (baseline, full, slope) = (est("baseline"), est("full_effect"), est("slope"));
         println!(
             "{}: baseline {baseline:.3} full_effect {full:.3} slope {slope:.3}",
-            g["group"]
+            g["compound"]
         );
         assert_eq!(g["status"], "converged", "{g}");
         assert!(slope > 0.0, "{g}");

@@ -96,7 +96,8 @@ fn rank_with_a_seed_gives_the_same_bytes_on_one_and_two_threads() {
     let tried = json_number(&text, "candidates_tried");
     let minima = json_number(&text, "minima_found");
     println!("  {tried} starts tried, {minima} distinct minima");
-    assert!(tried >= 16.0, "{tried} starts tried");
+    // the adaptive search runs the inferred start, then three more, at least
+    assert!(tried >= 4.0, "{tried} starts tried");
     assert!(minima >= 1.0);
 }
 

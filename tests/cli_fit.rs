@@ -156,13 +156,15 @@ fn search_budget_and_seed_of_a_fit_without_starts() {
         json["minima_found"],
         estimate(&json, "k")
     );
-    assert_eq!(json["candidates_tried"].as_u64(), Some(8), "{out}");
+    // --starts is a ceiling: the search may settle earlier (the inferred start fits to the noise).
+    let tried = json["candidates_tried"].as_u64().unwrap();
+    assert!((4..=8).contains(&tried), "{out}");
     assert!((estimate(&json, "k") - 0.085).abs() < 0.005, "{out}");
     // Same seed, same bytes; another budget is honoured too.
     assert_eq!(args("8", "3").1, out);
     let (_, more, _) = args("24", "3");
     let more: serde_json::Value = serde_json::from_str(&more).unwrap();
-    assert_eq!(more["candidates_tried"].as_u64(), Some(24));
+    assert!(more["candidates_tried"].as_u64().unwrap() <= 24);
     assert!((estimate(&more, "k") - estimate(&json, "k")).abs() < 1e-9);
 }
 

@@ -277,3 +277,116 @@ fn infer_and_rank_json_have_every_field_their_schemas_require() {
         );
     }
 }
+
+/// Checks a document's `run` against docs/schema/run.schema.json: every
+/// required field with its type, and the arguments as given.
+fn check_run(doc: &serde_json::Value, args: &[&str], searched: bool) {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let schema: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(root.join("docs/schema/run.schema.json")).unwrap(),
+    )
+    .unwrap();
+    let run = &doc["run"];
+    for field in required(&schema) {
+        assert!(run.get(&field).is_some(), "run lacks {field}: {run}");
+        let ok = match &schema["properties"][&field]["type"] {
+            serde_json::Value::String(t) => type_matches(&run[&field], t),
+            serde_json::Value::Array(ts) => ts
+                .iter()
+                .any(|t| type_matches(&run[&field], t.as_str().unwrap())),
+            _ => true,
+        };
+        assert!(ok, "run.{field} has the wrong type: {run}");
+    }
+    assert_eq!(run["version"], env!("CARGO_PKG_VERSION"));
+    let given: Vec<&str> = run["arguments"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|a| a.as_str().unwrap())
+        .collect();
+    assert_eq!(given, args, "the command line as given");
+    assert_eq!(run["seed"].is_u64(), searched, "{run}");
+    assert_eq!(run["starts"].is_u64(), searched, "{run}");
+}
+
+#[test]
+fn every_document_records_its_run() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let model = "temp = ambient + delta*exp(-k*minutes)";
+    let data = "demo-data/part_cooling.csv";
+    let cases: Vec<(Vec<&str>, bool)> = vec![
+        (vec!["fit", data, "--model", model, "--format", "json"], true),
+        (
+            vec![
+                "fit",
+                data,
+                "--model",
+                model,
+                "--start",
+                "ambient=20,delta=150,k=0.1",
+                "--format",
+                "json",
+            ],
+            false,
+        ),
+        (vec!["infer", data, "--model", model, "--format", "json"], false),
+        (
+            vec!["rank", data, "--model", model, "--seed", "7", "--starts", "12", "--format", "json"],
+            true,
+        ),
+    ];
+    for (args, searched) in &cases {
+        let (code, out, err) = run(args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+        check_run(&v, args, *searched);
+        // YAML carries the same run.
+        let mut yaml_args = args.clone();
+        *yaml_args.last_mut().unwrap() = "yaml";
+        let (code, out, _) = run(&yaml_args);
+        assert_eq!(code, 0);
+        let y: serde_json::Value = serde_yaml_ng::from_str(&out).unwrap();
+        check_run(&y, &yaml_args, *searched);
+    }
+    let (_, out, _) = run(&cases[3].0);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["run"]["seed"], 7);
+    assert_eq!(v["run"]["starts"], 12);
+
+    // The batch document: every field its schema requires, the group's field
+    // named after --by, and the run.
+    let schema: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(root.join("docs/schema/batch.schema.json")).unwrap(),
+    )
+    .unwrap();
+    let args = [
+        "fit",
+        "demo-data/creep_specimens.csv",
+        "--model",
+        "strain = e0 + a*hours^m",
+        "--start",
+        "e0=0.1,a=0.02,m=0.4",
+        "--by",
+        "specimen",
+        "--format",
+        "json",
+    ];
+    let (code, out, err) = run(&args);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    for field in required(&schema) {
+        assert!(v.get(&field).is_some(), "batch: missing {field}");
+    }
+    assert_eq!(v["by"], "specimen");
+    let groups = v["groups"].as_array().unwrap();
+    assert_eq!(groups.len(), 3);
+    for (g, label) in groups.iter().zip(["1", "2", "3"]) {
+        assert_eq!(g["specimen"], label, "{g}");
+        for field in required(&schema["properties"]["groups"]["items"]) {
+            assert!(g.get(&field).is_some(), "group lacks {field}: {g}");
+        }
+        assert_eq!(g["n_obs"], 23);
+    }
+    check_run(&v, &args, false);
+}

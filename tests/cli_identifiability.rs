@@ -60,7 +60,10 @@ fn noise_fit_flags_the_rate_in_json_and_csv() {
     assert_eq!(r["identifiable"], false, "{r}");
     assert_eq!(r["unidentified_reason"], "relative_se", "{r}");
     // The rate's standard error is more than 1000 times its estimate.
-    let (est, se) = (r["estimate"].as_f64().unwrap(), r["std_error"].as_f64().unwrap());
+    let (est, se) = (
+        r["estimate"].as_f64().unwrap(),
+        r["std_error"].as_f64().unwrap(),
+    );
     assert!(se > 1e3 * est.abs(), "{r}");
     for n in ["a", "c"] {
         let p = get(n);
@@ -88,5 +91,101 @@ fn determined_fit_has_no_flag() {
     ]);
     assert_eq!(code, 0, "{err}");
     assert!(!out.contains("not identifiable"), "{out}");
-    assert!(!out.lines().any(|l| l.starts_with("parameter") && l.ends_with("note")), "{out}");
+    assert!(
+        !out.lines()
+            .any(|l| l.starts_with("parameter") && l.ends_with("note")),
+        "{out}"
+    );
+}
+
+/// Batch output marks the rate of every group fitted to the noise.
+#[test]
+fn batch_marks_unidentified_parameters() {
+    let mut data = String::from("run,x,y\n");
+    for run in ["p", "q"] {
+        for line in NOISE.lines().skip(1) {
+            data += &format!("{run},{line}\n");
+        }
+    }
+    let p = scratch_file("batch", &data);
+    let args = |format: &'static str| {
+        vec![
+            "fit".to_string(),
+            p.to_str().unwrap().to_string(),
+            "--model".into(),
+            "a*exp(-r*x)+c".into(),
+            "--start".into(),
+            "a=10,r=3,c=0.5".into(),
+            "--by".into(),
+            "run".into(),
+            "--format".into(),
+            format.into(),
+        ]
+    };
+    let a = args("csv");
+    let (code, csv, err) = run(&a.iter().map(String::as_str).collect::<Vec<_>>());
+    assert_eq!(code, 0, "{err}");
+    let head: Vec<&str> = csv.lines().next().unwrap().split(',').collect();
+    let col = |n: &str| head.iter().position(|h| *h == n).expect(n);
+    let (ri, ai) = (col("r_identifiable"), col("a_identifiable"));
+    for line in csv.lines().skip(1) {
+        let cells: Vec<&str> = line.split(',').collect();
+        assert_eq!(cells[ri], "false", "{line}");
+        assert_eq!(cells[ai], "true", "{line}");
+    }
+    let a = args("table");
+    let (code, table, err) = run(&a.iter().map(String::as_str).collect::<Vec<_>>());
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(
+        table.matches("(n.i.)").count(),
+        3,
+        "two marks and the legend: {table}"
+    );
+    let a = args("json");
+    let (_, json, _) = run(&a.iter().map(String::as_str).collect::<Vec<_>>());
+    let v: serde_json::Value = serde_json::from_str(&json).expect("json");
+    let g = &v["groups"][0]["parameters"];
+    let r = g
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["name"] == "r")
+        .unwrap();
+    assert_eq!(r["identifiable"], false, "{r}");
+}
+
+/// The HTML report marks the rate beside its estimate (the page itself is
+/// checked in headless Chromium by tests/cli_report.rs; here only the row).
+#[test]
+fn report_marks_the_rate_beside_its_estimate() {
+    let p = scratch_file("report", NOISE);
+    let page = p.with_file_name("page.html");
+    let (code, _, err) = run(&[
+        "report",
+        p.to_str().unwrap(),
+        "--model",
+        "a*exp(-r*x)+c",
+        "--start",
+        "a=10,r=3,c=0.5",
+        "--out",
+        page.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let html = std::fs::read_to_string(&page).unwrap();
+    let row = html
+        .lines()
+        .find(|l| l.starts_with("<tr><td><code>r</code>") && l.contains("class=\"num\">7"))
+        .unwrap_or_else(|| panic!("no estimate row for r"));
+    assert!(
+        row.contains(
+            "<em class=\"unidentified\">(not identifiable: std. error &gt; 1000 x |estimate|)</em>"
+        ),
+        "{row}"
+    );
+    let a_row = html
+        .lines()
+        .filter(|l| l.starts_with("<tr><td><code>a</code>"))
+        .last()
+        .unwrap();
+    assert!(!a_row.contains("unidentified"), "{a_row}");
 }

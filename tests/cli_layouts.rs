@@ -125,7 +125,10 @@ fn replicate_layouts_give_identical_estimates() {
         }
     }
     // The estimates themselves: the invented curve is recovered.
-    let fit = ok(&wide, &["fit", "--model", MODEL, "--y", "rep*", "--format", "csv"]);
+    let fit = ok(
+        &wide,
+        &["fit", "--model", MODEL, "--y", "rep*", "--format", "csv"],
+    );
     let ec50: f64 = fit
         .lines()
         .find_map(|l| l.strip_prefix("ec50,"))
@@ -180,7 +183,14 @@ fn replicate_layouts_give_identical_estimates() {
         "{err}"
     );
     // Without --decimal, the tab file's message names the cause.
-    let (code, _, err) = run(&["fit", tab.to_str().unwrap(), "--model", MODEL, "--y", "rep*"]);
+    let (code, _, err) = run(&[
+        "fit",
+        tab.to_str().unwrap(),
+        "--model",
+        MODEL,
+        "--y",
+        "rep*",
+    ]);
     assert_eq!(code, 2);
     assert!(err.contains("(decimal comma? try --decimal ,)"), "{err}");
 
@@ -279,7 +289,10 @@ fn sample_columns_become_groups() {
     let csv = ["--model", MODEL, "--format", "csv"];
     let want = ok(&long, &[&["fit"][..], &csv, &["--by", "sample"]].concat());
     for (path, spec) in [(&wide, "S1..S4"), (&semi, "S*"), (&book, "S1,S2,S3,S4")] {
-        let got = ok(path, &[&["fit"][..], &csv, &["--wide-groups", spec]].concat());
+        let got = ok(
+            path,
+            &[&["fit"][..], &csv, &["--wide-groups", spec]].concat(),
+        );
         assert_eq!(got, want, "{path:?} {spec}");
     }
     // Each sample's own ec50 is recovered.

@@ -184,13 +184,13 @@ fn batch_report_shows_a_failing_group_and_still_writes_the_page() {
     ]);
     assert_eq!(code, 1, "one group failed: {err}");
     assert!(
-        err.contains("1 of 3 groups did not converge (well = B2)"),
+        err.contains("1 of 3 groups failed (well = B2); the report shows them"),
         "{err}"
     );
     let html = std::fs::read_to_string(&html_path).unwrap();
     assert!(
-        html.contains("<tr class=\"failed\"><td>B2</td><td>failed</td>"),
-        "failed row"
+        html.contains("<tr class=\"failed\"><td>B2</td><td>failed</td><td class=\"num\">2</td>"),
+        "failed row, with its two rows counted"
     );
     assert!(html.contains("too few"), "the reason is shown");
     assert!(
@@ -221,7 +221,15 @@ fn report_without_starts_infers_them_and_a_bad_model_exits_two() {
     let starts = &out[out.find("Starting values").expect("starts section")..];
     assert!(starts.contains("enters linearly"), "{starts:.2000}");
     assert!(starts.contains("k: rate; scanned"), "{starts:.2000}");
-    assert!(starts.contains("multistart search (64 starts): minimum ranked 1 of"));
+    // --starts is a ceiling: the report says how many starts the search ran (at most 64)
+    let at = starts.find("multistart search (").expect("search sentence") + 19;
+    let tried: usize = starts[at..]
+        .split(' ')
+        .next()
+        .and_then(|v| v.parse().ok())
+        .expect("count of starts");
+    assert!((1..=64).contains(&tried), "{tried}");
+    assert!(starts[at..].contains(" starts): minimum ranked 1 of"));
     let ranking = &out[out.find("Ranking of minima").expect("ranking section")..];
     let first = ranking.find("<td>1</td>").or_else(|| ranking.find(">1<"));
     assert!(first.is_some(), "{ranking:.1500}");
@@ -570,5 +578,31 @@ fn report_renders_in_headless_chromium() {
     if std::fs::create_dir_all(&keep).is_ok() {
         let _ = std::fs::copy(&shot, keep.join("batch-chromium.png"));
     }
+    let _ = std::fs::remove_dir_all(&d);
+}
+
+#[test]
+fn pages_end_with_the_run_line() {
+    let d = scratch("runline");
+    let page = d.join("cooling.html");
+    let args = [
+        "report",
+        "demo-data/part_cooling.csv",
+        "--model",
+        "temp = ambient + delta*exp(-k*minutes)",
+        "--seed",
+        "5",
+        "--out",
+        page.to_str().unwrap(),
+    ];
+    let (code, _, err) = run(&args);
+    assert_eq!(code, 0, "{err}");
+    let html = std::fs::read_to_string(&page).unwrap();
+    let want = format!(
+        "<footer class=\"meta\"><p>foothold {} run as: foothold report demo-data/part_cooling.csv --model &#39;temp = ambient + delta*exp(-k*minutes)&#39; --seed 5 --out {} (search: seed 5, 64 starts)</p></footer>\n</main>",
+        env!("CARGO_PKG_VERSION"),
+        page.display()
+    );
+    assert!(html.contains(&want), "{}", &html[html.len().saturating_sub(600)..]);
     let _ = std::fs::remove_dir_all(&d);
 }

@@ -17,13 +17,15 @@ pub struct Cli {
 /// The subcommands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Fit a model to data from given starting values (--start), one curve or one per group (--by).
+    /// Fit a model to data, one curve or one per group (--by); starting values are worked out
+    /// unless given (--start).
     Fit(FitArgs),
     /// Work out starting values from the model and the data, with how each was obtained.
     Infer(InferArgs),
     /// Rank candidate starts by a multistart search: distinct minima with the starts that reach them.
     Rank(RankArgs),
-    /// Write a full HTML report of a fit: data, features, starts, estimates, plots.
+    /// Write a full HTML report of a fit: data, features, starts (worked out unless given), estimates,
+    /// plots.
     Report(ReportArgs),
     /// List the model library: names usable with --model.
     Models(ModelsArgs),
@@ -33,13 +35,13 @@ pub enum Command {
 #[derive(Debug, Clone, Args)]
 pub struct InputArgs {
     /// Data: CSV, tab- or space-separated text with a header line; a workbook
-    /// (.xlsx, .xlsm, .xlsb, .xls, .ods); or - for standard input (text).
+    /// (.xlsx, .xlsm, .xlsb, .xls); or - for standard input (text).
     #[arg(value_name = "DATA")]
     pub data: String,
     /// Model formula, e.g. "y = a*exp(-k*x)" (names that are columns are
     /// variables, all other names are parameters), or the name of a library
-    /// model, e.g. michaelis-menten (see `foothold models`).
-    #[arg(long, short = 'm', value_name = "FORMULA|NAME")]
+    /// model, e.g. michaelis-menten (see `foothold models`). A formula may start with '-'.
+    #[arg(long, short = 'm', value_name = "FORMULA|NAME", allow_hyphen_values = true)]
     pub model: String,
     /// Data column for the model's variable `x` (library models are written in x).
     #[arg(long = "x", value_name = "COLUMN")]
@@ -126,12 +128,14 @@ pub struct SearchArgs {
     pub by: Option<String>,
 }
 
-/// `fit`: a local fit from given starting values.
+/// `fit`: a local fit from the given starting values, or from those worked out.
 #[derive(Debug, Clone, Args)]
 pub struct FitArgs {
     #[command(flatten)]
     pub input: InputArgs,
-    /// Starting values, NAME=VALUE, comma-separated or repeated; every parameter needs one.
+    /// Optional starting values, NAME=VALUE, comma-separated or repeated; when given, every
+    /// parameter needs one. Without --start they are worked out (inference, then the multistart
+    /// search).
     #[arg(long, value_name = "NAME=VALUE,...", value_delimiter = ',')]
     pub start: Vec<String>,
     /// The search that finds starts when none are given.
@@ -181,7 +185,9 @@ pub struct ReportArgs {
     pub input: InputArgs,
     #[command(flatten)]
     pub search: SearchArgs,
-    /// Starting values, NAME=VALUE, comma-separated or repeated; every parameter needs one.
+    /// Optional starting values, NAME=VALUE, comma-separated or repeated; when given, every
+    /// parameter needs one. Without --start they are worked out (inference, then the multistart
+    /// search).
     #[arg(long, value_name = "NAME=VALUE,...", value_delimiter = ',')]
     pub start: Vec<String>,
     /// HTML file to write [default: standard output].

@@ -1,11 +1,14 @@
 //! `foothold fit --by COLUMN`: one curve per group of rows sharing a value of
 //! a column (text labels such as `A1` or numbers), fitted in parallel (rayon), with a progress bar on a
-//! terminal (indicatif). A failing group never stops the others; every group
-//! gets one summary row, in order of first appearance.
+//! terminal (indicatif), or with `--verbose` a progress line every few
+//! seconds when stderr is not a terminal. A failing group never stops the
+//! others; every group gets one summary row, in order of first appearance.
+//! The group column carries the `--by` column's name in every format.
 
 use super::args::{FitArgs, Format, InputArgs};
 use super::output::emit;
-use super::prepare::{bind_rows, model_for, run_fit, starting_values_searched};
+use super::prepare::{bind_rows, model_for, run_fit, starting_values_searched, starts_given};
+use super::provenance::Run;
 use super::rank_cmd::search_options;
 use super::Outcome;
 use crate::data::Dataset;
@@ -19,8 +22,12 @@ use crate::search::SearchOptions;
 use crate::symbolic::Model;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
+use serde::ser::{SerializeMap, Serializer};
 use serde::Serialize;
 use std::io::{IsTerminal, Write};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::mpsc;
+use std::time::{Duration, Instant};
 
 /// How one group's fit ended.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
@@ -56,13 +63,15 @@ pub struct GroupParameter {
     pub identifiable: Option<bool>,
 }
 
-/// The summary row of one group.
-#[derive(Debug, Clone, Serialize)]
+/// The summary row of one group (written with [`KeyedRow`], which names the
+/// group's field after the `--by` column).
+#[derive(Debug, Clone)]
 pub struct GroupRow {
     /// The group's value of the `--by` column, as text.
     pub group: String,
     pub status: GroupStatus,
-    /// Rows used in this group's fit (0 when it failed before fitting).
+    /// The group's rows with every cell the model uses: the rows its fit
+    /// used, or would have used when it failed.
     pub n_obs: usize,
     pub iterations: usize,
     pub ssr: Option<f64>,
@@ -72,14 +81,120 @@ pub struct GroupRow {
 }
 
 /// The whole batch result (JSON and YAML output).
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone)]
 pub struct BatchDoc {
     pub model: String,
     pub data: String,
     pub response: String,
+    /// The `--by` column: also the name of each group's first field.
     pub by: String,
     pub groups: Vec<GroupRow>,
     pub warnings: Vec<String>,
+}
+
+/// A group's row as written in JSON and YAML: its first field is named after
+/// the `--by` column (`"compound": "KX-101"`), as the table's and CSV's
+/// first column are.
+pub struct KeyedRow<'a> {
+    /// The `--by` column's name.
+    pub by: &'a str,
+    /// The row.
+    pub row: &'a GroupRow,
+}
+
+impl Serialize for KeyedRow<'_> {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let r = self.row;
+        let mut m = s.serialize_map(Some(7))?;
+        m.serialize_entry(self.by, &r.group)?;
+        m.serialize_entry("status", &r.status)?;
+        m.serialize_entry("n_obs", &r.n_obs)?;
+        m.serialize_entry("iterations", &r.iterations)?;
+        m.serialize_entry("ssr", &r.ssr)?;
+        m.serialize_entry("parameters", &r.parameters)?;
+        m.serialize_entry("message", &r.message)?;
+        m.end()
+    }
+}
+
+/// The batch document in the order JSON and YAML write it.
+#[derive(Serialize)]
+struct BatchOut<'a> {
+    model: &'a str,
+    data: &'a str,
+    response: &'a str,
+    by: &'a str,
+    groups: Vec<KeyedRow<'a>>,
+    warnings: &'a [String],
+    run: &'a Run,
+}
+
+impl BatchDoc {
+    /// The document as JSON and YAML write it, with the run that produced it.
+    fn out<'a>(&'a self, run: &'a Run) -> BatchOut<'a> {
+        BatchOut {
+            model: &self.model,
+            data: &self.data,
+            response: &self.response,
+            by: &self.by,
+            groups: self
+                .groups
+                .iter()
+                .map(|row| KeyedRow { by: &self.by, row })
+                .collect(),
+            warnings: &self.warnings,
+            run,
+        }
+    }
+}
+
+/// Names the batch summary uses for its own columns (table, CSV, JSON): a
+/// `--by` column with one of these names would be ambiguous.
+fn summary_names(params: &[String]) -> Vec<String> {
+    let mut names: Vec<String> = [
+        "status", "rows", "n_obs", "iterations", "ssr", "parameters", "message",
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect();
+    for p in params {
+        names.push(p.clone());
+        names.push(format!("se({p})"));
+        names.push(format!("{p}_estimate"));
+        names.push(format!("{p}_std_error"));
+        names.push(format!("{p}_identifiable"));
+    }
+    names
+}
+
+/// One line saying which groups failed and which did not converge, e.g.
+/// `2 of 6 groups failed (compound = A, B) and 1 did not converge (compound = C)`;
+/// `None` when every group converged.
+pub fn unfinished_summary<'a>(
+    groups: impl IntoIterator<Item = (&'a str, GroupStatus)>,
+    by: &str,
+) -> Option<String> {
+    let (mut failed, mut stalled, mut total) = (Vec::new(), Vec::new(), 0);
+    for (label, status) in groups {
+        total += 1;
+        match status {
+            GroupStatus::Failed => failed.push(label),
+            GroupStatus::NotConverged => stalled.push(label),
+            GroupStatus::Converged => {}
+        }
+    }
+    let parts: Vec<String> = [(failed, "failed"), (stalled, "did not converge")]
+        .into_iter()
+        .filter(|(v, _)| !v.is_empty())
+        .map(|(v, what)| format!("{} {what} ({by} = {})", v.len(), v.join(", ")))
+        .collect();
+    let (first, rest) = parts.split_first()?;
+    let (count, tail) = first.split_once(' ').unwrap_or((first, ""));
+    let mut line = format!("{count} of {total} groups {tail}");
+    for r in rest {
+        line += &format!(" and {r}");
+    }
+    Some(line)
 }
 
 fn finite(v: f64) -> Option<f64> {
@@ -87,18 +202,24 @@ fn finite(v: f64) -> Option<f64> {
 }
 
 /// Group keys in order of first appearance and, for each, its row indices;
-/// rows with an empty group cell are counted apart.
+/// rows with an empty group cell are counted apart. One pass with a hash map
+/// from the key's bits to its group (−0 and +0 are one key): O(rows).
 pub fn groups_of(column: &[f64]) -> (Vec<(f64, Vec<usize>)>, usize) {
     let mut groups: Vec<(f64, Vec<usize>)> = Vec::new();
+    let mut index: std::collections::HashMap<u64, usize> = std::collections::HashMap::new();
     let mut missing = 0;
     for (i, &v) in column.iter().enumerate() {
         if v.is_nan() {
             missing += 1;
             continue;
         }
-        match groups.iter_mut().find(|(k, _)| *k == v) {
-            Some((_, rows)) => rows.push(i),
-            None => groups.push((v, vec![i])),
+        let key = if v == 0.0 { 0.0f64 } else { v };
+        match index.entry(key.to_bits()) {
+            std::collections::hash_map::Entry::Occupied(e) => groups[*e.get()].1.push(i),
+            std::collections::hash_map::Entry::Vacant(e) => {
+                e.insert(groups.len());
+                groups.push((v, vec![i]));
+            }
         }
     }
     (groups, missing)
@@ -167,6 +288,19 @@ pub struct GroupFit {
     pub estimates: Vec<f64>,
 }
 
+/// Rows of `data` with a finite value in every column the model uses.
+fn complete_rows(model: &Model, data: &Dataset) -> usize {
+    let columns: Vec<&[f64]> = model
+        .vars
+        .iter()
+        .chain(std::iter::once(&model.response))
+        .filter_map(|c| data.column(c))
+        .collect();
+    (0..data.n_rows())
+        .filter(|&i| columns.iter().all(|c| c.get(i).is_some_and(|v| v.is_finite())))
+        .count()
+}
+
 /// Fits one group; every error becomes a failed row.
 fn fit_group(
     start: &[String],
@@ -179,7 +313,7 @@ fn fit_group(
     let failed = |message: String| GroupRow {
         group: key.clone(),
         status: GroupStatus::Failed,
-        n_obs: 0,
+        n_obs: complete_rows(model, data),
         iterations: 0,
         ssr: None,
         parameters: names
@@ -252,8 +386,57 @@ fn fit_group(
     }
 }
 
-/// Fits every group in parallel (rayon), in the order given, with a progress
-/// bar on a terminal unless `quiet`.
+/// Interval between progress lines: 5 s, or `FOOTHOLD_PROGRESS_INTERVAL_MS`
+/// (a knob for tests, see DEVELOPERS.md).
+fn progress_interval() -> Duration {
+    std::env::var("FOOTHOLD_PROGRESS_INTERVAL_MS")
+        .ok()
+        .and_then(|v| v.trim().parse::<u64>().ok())
+        .filter(|&ms| ms > 0)
+        .map_or(Duration::from_secs(5), Duration::from_millis)
+}
+
+/// A duration to the second, in words a reader takes in at a glance:
+/// `42 s`, `3 min 05 s`, `2 h 07 min`.
+fn rough_duration(secs: f64) -> String {
+    let s = secs.max(0.0).round() as u64;
+    match s {
+        0..=59 => format!("{s} s"),
+        60..=3599 => format!("{} min {:02} s", s / 60, s % 60),
+        _ => format!("{} h {:02} min", s / 3600, (s % 3600) / 60),
+    }
+}
+
+/// One progress line: `foothold: progress: 37/480 groups, 12.3 groups/s,
+/// about 35 s left` (rate = groups done / time since the start; time left =
+/// groups to do / rate).
+pub fn progress_line(done: usize, total: usize, elapsed: Duration) -> String {
+    let secs = elapsed.as_secs_f64();
+    let rate = if secs > 0.0 { done as f64 / secs } else { 0.0 };
+    let remaining = total.saturating_sub(done) as f64 / rate;
+    let left = if done == 0 || rate <= 0.0 {
+        "time left unknown".to_string()
+    } else if remaining < 0.5 {
+        "less than a second left".to_string()
+    } else {
+        format!("about {} left", rough_duration(remaining))
+    };
+    format!("foothold: progress: {done}/{total} groups, {rate:.1} groups/s, {left}")
+}
+
+/// Prints a progress line to stderr every `interval` until `stop` is closed.
+fn progress_lines(done: &AtomicUsize, total: usize, interval: Duration, stop: mpsc::Receiver<()>) {
+    let clock = Instant::now();
+    while let Err(mpsc::RecvTimeoutError::Timeout) = stop.recv_timeout(interval) {
+        let line = progress_line(done.load(Ordering::Relaxed), total, clock.elapsed());
+        let _ = writeln!(std::io::stderr(), "{line}");
+    }
+}
+
+/// Fits every group in parallel (rayon), in the order given. Progress on
+/// stderr: a bar on a terminal unless `quiet`; with `verbose` and stderr not
+/// a terminal (a log file), a line every few seconds ([`progress_line`]).
+#[allow(clippy::too_many_arguments)]
 pub fn fit_groups(
     start: &[String],
     search: &SearchOptions,
@@ -262,8 +445,11 @@ pub fn fit_groups(
     groups: &[Group],
     by: &str,
     quiet: bool,
+    verbose: bool,
 ) -> Vec<GroupFit> {
-    let show = !quiet && std::io::stderr().is_terminal();
+    let terminal = std::io::stderr().is_terminal();
+    let show = !quiet && terminal;
+    let lines = verbose && !quiet && !terminal;
     let bar = if show {
         let b =
             ProgressBar::with_draw_target(Some(groups.len() as u64), ProgressDrawTarget::stderr());
@@ -276,21 +462,33 @@ pub fn fit_groups(
     } else {
         ProgressBar::hidden()
     };
-    let fits: Vec<GroupFit> = groups
-        .par_iter()
-        .map(|(key, idx)| {
-            let label = format!("{} [{by} = {key}]", data.source);
-            let fit = fit_group(
-                start,
-                search,
-                model,
-                &subset(data, idx, &label),
-                key.clone(),
-            );
-            bar.inc(1);
-            fit
-        })
-        .collect();
+    let done = AtomicUsize::new(0);
+    let fits: Vec<GroupFit> = std::thread::scope(|scope| {
+        let (stop, stopped) = mpsc::channel::<()>();
+        if lines {
+            let done = &done;
+            let interval = progress_interval();
+            scope.spawn(move || progress_lines(done, groups.len(), interval, stopped));
+        }
+        let fits = groups
+            .par_iter()
+            .map(|(key, idx)| {
+                let label = format!("{} [{by} = {key}]", data.source);
+                let fit = fit_group(
+                    start,
+                    search,
+                    model,
+                    &subset(data, idx, &label),
+                    key.clone(),
+                );
+                done.fetch_add(1, Ordering::Relaxed);
+                bar.inc(1);
+                fit
+            })
+            .collect();
+        drop(stop);
+        fits
+    });
     bar.finish_and_clear();
     fits
 }
@@ -309,10 +507,16 @@ pub fn batch_groups(
             data.column_list()
         )));
     }
-    let (_, model) = model_for(input, data)?;
+    let (spec, model) = model_for(input, data)?;
     if model.vars.iter().any(|v| v == by) || model.response == by {
         return Err(Error::Usage(format!(
             "--by {by}: the model uses '{by}' itself; group by another column"
+        )));
+    }
+    if summary_names(&model.params).iter().any(|n| n == by) {
+        return Err(Error::Usage(format!(
+            "--by {by}: the batch summary names its group column after the --by column, \
+             and '{by}' is already one of its own columns; rename the column in the data"
         )));
     }
     // A cell that is not a number in a column the model uses stops the batch once.
@@ -323,7 +527,7 @@ pub fn batch_groups(
     if groups.is_empty() {
         return Err(Error::Usage(format!("--by {by}: the column has no values")));
     }
-    let mut warnings = Vec::new();
+    let mut warnings = spec.notes;
     if groups.len() > 1 && groups.iter().all(|(_, rows)| rows.len() == 1) {
         warnings.push(format!(
             "--by {by} makes {} groups of one row each: almost certainly not the column that names the groups (each fit has one point)",
@@ -342,6 +546,7 @@ pub fn batch_groups(
 /// Runs the grouped fit of `fit --by`.
 pub fn run_batch(
     args: &FitArgs,
+    run: &Run,
     data: &Dataset,
     out: &mut dyn Write,
     err: &mut dyn Write,
@@ -349,14 +554,20 @@ pub fn run_batch(
     let by = args.by.clone().unwrap_or_default();
     let (model, groups, warnings) = batch_groups(&args.input, data, &by)?;
     let clock = std::time::Instant::now();
+    let options = search_options(&args.search);
+    let run = match starts_given(&args.start) {
+        true => run.clone(),
+        false => run.searched(&options),
+    };
     let rows: Vec<GroupRow> = fit_groups(
         &args.start,
-        &search_options(&args.search),
+        &options,
         &model,
         data,
         &groups,
         &by,
         args.output.quiet,
+        args.output.verbose,
     )
     .into_iter()
     .map(|f| f.row)
@@ -399,37 +610,27 @@ pub fn run_batch(
         Format::Table => batch_table(&doc, &model.params),
         Format::Csv => batch_csv(&doc, &model.params),
         Format::Json => {
-            to_json(&doc).map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
+            to_json(&doc.out(&run)).map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
         }
         Format::Yaml => {
-            to_yaml(&doc).map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
+            to_yaml(&doc.out(&run)).map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
         }
     };
     emit(&text, args.out.as_deref(), out)?;
-    let bad: Vec<&str> = doc
-        .groups
-        .iter()
-        .filter(|r| r.status != GroupStatus::Converged)
-        .map(|r| r.group.as_str())
-        .collect();
-    if bad.is_empty() {
-        Ok(Outcome::Success)
-    } else {
-        Ok(Outcome::NotConverged(format!(
-            "{} of {} groups did not converge ({by} = {})",
-            bad.len(),
-            doc.groups.len(),
-            bad.join(", ")
-        )))
-    }
+    let unfinished = unfinished_summary(
+        doc.groups.iter().map(|r| (r.group.as_str(), r.status)),
+        &by,
+    );
+    Ok(unfinished.map_or(Outcome::Success, Outcome::NotConverged))
 }
 
 /// Mark beside an estimate the group's data do not determine, in the table.
 const NOT_IDENTIFIABLE_MARK: &str = " (n.i.)";
 
-/// CSV header of the batch summary for these parameters.
-pub fn batch_csv_header(params: &[String]) -> Vec<String> {
-    let mut h: Vec<String> = ["group", "status", "n_obs", "iterations", "ssr"]
+/// CSV header of the batch summary for these parameters; the first column
+/// is named after the `--by` column.
+pub fn batch_csv_header(by: &str, params: &[String]) -> Vec<String> {
+    let mut h: Vec<String> = [by, "status", "n_obs", "iterations", "ssr"]
         .iter()
         .map(|s| s.to_string())
         .collect();
@@ -450,7 +651,7 @@ fn opt_csv(v: Option<f64>) -> String {
 
 /// The batch summary as CSV: a header, then one row per group.
 pub fn batch_csv(doc: &BatchDoc, params: &[String]) -> String {
-    let mut out = csv_line(&batch_csv_header(params));
+    let mut out = csv_line(&batch_csv_header(&doc.by, params));
     for r in &doc.groups {
         let mut cells = vec![
             r.group.clone(),
@@ -559,6 +760,56 @@ mod tests {
         assert_eq!(g[0].1, vec![0, 2]);
         assert_eq!(g[1].1, vec![1, 5]);
         assert_eq!(format!("{}", 3.0_f64), "3");
+    }
+
+    #[test]
+    fn progress_lines_say_done_rate_and_time_left() {
+        let secs = Duration::from_secs;
+        assert_eq!(
+            progress_line(0, 480, secs(5)),
+            "foothold: progress: 0/480 groups, 0.0 groups/s, time left unknown"
+        );
+        assert_eq!(
+            progress_line(60, 480, secs(5)),
+            "foothold: progress: 60/480 groups, 12.0 groups/s, about 35 s left"
+        );
+        assert_eq!(
+            progress_line(10, 4810, secs(5)),
+            "foothold: progress: 10/4810 groups, 2.0 groups/s, about 40 min 00 s left"
+        );
+        assert_eq!(
+            progress_line(1, 10_001, secs(1)),
+            "foothold: progress: 1/10001 groups, 1.0 groups/s, about 2 h 46 min left"
+        );
+        assert!(progress_line(480, 480, secs(9)).ends_with("less than a second left"));
+    }
+
+    #[test]
+    fn unfinished_groups_are_told_apart() {
+        use GroupStatus::*;
+        let g = [("A", Failed), ("B", Converged), ("C", NotConverged), ("D", Failed)];
+        assert_eq!(
+            unfinished_summary(g, "well").unwrap(),
+            "2 of 4 groups failed (well = A, D) and 1 did not converge (well = C)"
+        );
+        assert_eq!(
+            unfinished_summary([("A", NotConverged), ("B", Converged)], "w").unwrap(),
+            "1 of 2 groups did not converge (w = A)"
+        );
+        assert_eq!(unfinished_summary([("A", Converged)], "w"), None);
+    }
+
+    #[test]
+    fn numeric_groups_hash_each_value_once() {
+        // −0 and +0 are one group, as `==` says; 50,000 distinct ids stay in order.
+        let (g, _) = groups_of(&[0.0, -0.0, 1.0]);
+        assert_eq!(g.len(), 2);
+        assert_eq!(g[0].1, vec![0, 1]);
+        let col: Vec<f64> = (0..100_000).map(|i| ((i % 50_000) * 7 % 50_000) as f64).collect();
+        let (g, missing) = groups_of(&col);
+        assert_eq!((g.len(), missing), (50_000, 0));
+        assert_eq!(g[1].0, 7.0);
+        assert_eq!(g[1].1, vec![1, 50_001]);
     }
 
     #[test]

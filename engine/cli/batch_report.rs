@@ -4,10 +4,11 @@
 //! and the caution. A failing group shows as failed; it never stops the page.
 
 use super::args::ReportArgs;
-use super::batch::{batch_groups, fit_groups, GroupFit, GroupStatus};
+use super::batch::{batch_groups, fit_groups, unfinished_summary, GroupFit, GroupStatus};
 use super::model_arg::resolve_model;
 use super::output::emit;
 use super::prepare::starts_given;
+use super::provenance::Run;
 use super::report_cmd::report_date;
 use super::Outcome;
 use crate::data::Dataset;
@@ -79,6 +80,7 @@ fn series(fit: &GroupFit, model: &Model, data: &Dataset, rows: &[usize]) -> Grou
 /// Runs `report --by`: the batch page goes to `--out` (atomically) or to `out`.
 pub fn run_batch_report(
     args: &ReportArgs,
+    run: &Run,
     data: &Dataset,
     out: &mut dyn Write,
     err: &mut dyn Write,
@@ -99,6 +101,7 @@ pub fn run_batch_report(
         &groups,
         &by,
         args.quiet,
+        false,
     );
 
     let x_name = model.vars.first().cloned().unwrap_or_default();
@@ -169,24 +172,18 @@ pub fn run_batch_report(
             message: f.row.message.clone(),
         })
         .collect();
-    let bad: Vec<&str> = fits
-        .iter()
-        .filter(|f| f.row.status != GroupStatus::Converged)
-        .map(|f| f.row.group.as_str())
-        .collect();
-    if !bad.is_empty() {
-        warnings.push(format!(
-            "{} of {} groups did not converge or failed ({by} = {}); see the notes under the table",
-            bad.len(),
-            fits.len(),
-            bad.join(", ")
-        ));
+    let unfinished = unfinished_summary(
+        fits.iter().map(|f| (f.row.group.as_str(), f.row.status)),
+        &by,
+    );
+    if let Some(u) = &unfinished {
+        warnings.push(format!("{u}; see the notes under the table"));
     }
     let file = std::path::Path::new(&data.source)
         .file_name()
         .map(|f| f.to_string_lossy().into_owned())
         .unwrap_or_else(|| data.source.clone());
-    let title = match resolve_model(&args.input.model, args.input.x.as_deref())
+    let title = match resolve_model(&args.input.model, args.input.x.as_deref(), &data.columns)
         .ok()
         .and_then(|s| s.library)
     {
@@ -196,7 +193,11 @@ pub fn run_batch_report(
         ),
         None => format!("Batch fit to {file}, one curve per {by}"),
     };
-    let used: usize = fits.iter().map(|f| f.row.n_obs).sum();
+    let used: usize = fits
+        .iter()
+        .filter(|f| f.row.status != GroupStatus::Failed)
+        .map(|f| f.row.n_obs)
+        .sum();
     let mut columns = model
         .vars
         .iter()
@@ -233,21 +234,19 @@ pub fn run_batch_report(
         grid_caption,
         warnings: warnings.clone(),
     };
-    let page = render_batch_report(&input);
+    let run = match starts_given(&args.start) {
+        true => run.clone(),
+        false => run.searched(&super::rank_cmd::search_options(&args.search.budget)),
+    };
+    let page = run.add_to_page(render_batch_report(&input));
     if !args.quiet {
         for w in &warnings {
             let _ = writeln!(err, "foothold: warning: {w}");
         }
     }
     emit(&page, args.out.as_deref(), out)?;
-    if bad.is_empty() {
-        Ok(Outcome::Success)
-    } else {
-        Ok(Outcome::NotConverged(format!(
-            "{} of {} groups did not converge ({by} = {}); the report shows them",
-            bad.len(),
-            fits.len(),
-            bad.join(", ")
-        )))
-    }
+    Ok(match unfinished {
+        Some(u) => Outcome::NotConverged(format!("{u}; the report shows them")),
+        None => Outcome::Success,
+    })
 }

@@ -5,21 +5,25 @@
 use super::args::{FitArgs, Format};
 use super::batch::run_batch;
 use super::output::{emit, write_plots};
-use super::prepare::{
-    bind_rows, model_for, read_input, run_fit as lm_fit, starting_values_searched,
-};
+use super::provenance::{Run, WithRun};
+use super::prepare::{bind_input, read_input, run_fit as lm_fit, starting_values_searched};
 use super::Outcome;
 use crate::error::Error;
 use crate::features::detect;
 use crate::report::assemble::{fit_sheet, survey_panels};
-use crate::report::fit_json::fit_json;
+use crate::report::fit_json::fit_document;
 use crate::report::fit_table::fit_table;
-use crate::report::formats::{fit_csv, fit_yaml};
+use crate::report::formats::{fit_csv, to_json, to_yaml};
 use std::io::Write;
 use std::time::Instant;
 
 /// Runs `fit`; the result goes to `out` (or `--out`), warnings and details to `err`.
-pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Result<Outcome, Error> {
+pub fn run_fit(
+    args: &FitArgs,
+    run: &Run,
+    out: &mut dyn Write,
+    err: &mut dyn Write,
+) -> Result<Outcome, Error> {
     let input = &args.input;
     let verbose = args.output.verbose;
     let clock = Instant::now();
@@ -30,9 +34,10 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
                 "--plots draws one curve; it cannot be combined with --by".into(),
             ));
         }
-        return run_batch(args, &data, out, err);
+        return run_batch(args, run, &data, out, err);
     }
-    let (_, model) = model_for(input, &data)?;
+    let (_, mut bound) = bind_input(input, &data)?;
+    let model = &bound.problem.model;
     if verbose {
         let _ = writeln!(
             err,
@@ -42,17 +47,26 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
             model.response
         );
     }
-    let mut bound = bind_rows(model, &data)?;
     let search_clock = Instant::now();
-    let (start, searched) = starting_values_searched(
-        &args.start,
-        &bound.problem,
-        &super::rank_cmd::search_options(&args.search),
-    )?;
+    let options = super::rank_cmd::search_options(&args.search);
+    let (start, searched) = starting_values_searched(&args.start, &bound.problem, &options)?;
+    let run = match searched {
+        Some(_) => run.searched(&options),
+        None => run.clone(),
+    };
     if let (true, Some((tried, minima))) = (verbose, searched) {
+        let opts = super::rank_cmd::search_options(&args.search);
+        let why = if tried >= opts.starts {
+            "every start tried"
+        } else if opts.time_limit.is_some() {
+            "stopped early (settled, or the time limit)"
+        } else {
+            crate::search::SearchStop::Settled.words()
+        };
         let _ = writeln!(
             err,
-            "foothold: starting values inferred; search: {tried} starts tried, {minima} distinct minima, {:.1} ms",
+            "foothold: starting values inferred; search: {tried} starts tried of at most {}, {minima} distinct minima, {:.1} ms; stopped: {why}",
+            opts.starts,
             search_clock.elapsed().as_secs_f64() * 1e3
         );
     }
@@ -77,15 +91,20 @@ pub fn run_fit(args: &FitArgs, out: &mut dyn Write, err: &mut dyn Write) -> Resu
             let _ = writeln!(err, "foothold: warning: {w}");
         }
     }
-    let text =
-        match args.output.format {
-            Format::Table => fit_table(&summary, ctx),
-            Format::Json => fit_json(&summary, ctx)
-                .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?,
-            Format::Yaml => fit_yaml(&summary, ctx)
-                .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?,
-            Format::Csv => fit_csv(&summary),
-        };
+    let doc = || WithRun {
+        doc: fit_document(&summary, ctx),
+        run: &run,
+    };
+    let text = match args.output.format {
+        Format::Table => fit_table(&summary, ctx),
+        Format::Json => {
+            to_json(&doc()).map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?
+        }
+        Format::Yaml => {
+            to_yaml(&doc()).map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?
+        }
+        Format::Csv => fit_csv(&summary),
+    };
     if let Some(dir) = &args.plots {
         let x = problem.x.first().map(Vec::as_slice).unwrap_or(&[]);
         let features = detect(x, &problem.y);

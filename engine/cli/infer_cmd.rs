@@ -2,7 +2,8 @@
 //! from the model and the data, and print each with its derivation.
 
 use super::args::{Format, InferArgs};
-use super::prepare::{bind_rows, model_for, read_input};
+use super::prepare::{bind_input, read_input};
+use super::provenance::{Run, WithRun};
 use super::Outcome;
 use crate::error::Error;
 use crate::features::shape::Direction;
@@ -17,14 +18,14 @@ use std::time::Instant;
 /// Runs `infer`; the result goes to `out`, warnings and details to `err`.
 pub fn run_infer(
     args: &InferArgs,
+    run: &Run,
     out: &mut dyn Write,
     err: &mut dyn Write,
 ) -> Result<Outcome, Error> {
     let input = &args.input;
     let verbose = args.output.verbose;
     let data = read_input(input, verbose, err)?;
-    let (_, model) = model_for(input, &data)?;
-    let bound = bind_rows(model, &data)?;
+    let (_, bound) = bind_input(input, &data)?;
     let clock = Instant::now();
     let inf =
         infer(&bound.problem, &InferOptions::default()).map_err(|e| Error::Usage(e.to_string()))?;
@@ -48,6 +49,7 @@ pub fn run_infer(
             &bound.problem.model.text,
             &bound.context.data,
             &bound.context.response,
+            run,
         )
         .map_err(|e| Error::Usage(format!("cannot write JSON: {e}")))?,
         Format::Yaml => {
@@ -56,6 +58,7 @@ pub fn run_infer(
                 &bound.problem.model.text,
                 &bound.context.data,
                 &bound.context.response,
+                run,
             )
             .map_err(|e| Error::Usage(format!("cannot write YAML: {e}")))?;
             let value: serde_json::Value = serde_json::from_str(&json)
@@ -65,7 +68,7 @@ pub fn run_infer(
         }
         Format::Csv => infer_csv(&inf),
     };
-    let _ = out.write_all(text.as_bytes());
+    super::output::emit(&text, None, out)?;
     Ok(Outcome::Success)
 }
 
@@ -195,12 +198,14 @@ struct InferOut<'a> {
 }
 
 /// The inference as JSON (non-finite numbers become `null`), with the model,
-/// the data source and the response column, as docs/schema/infer.schema.json says.
+/// the data source, the response column and the run, as
+/// docs/schema/infer.schema.json says.
 pub fn infer_json(
     inf: &Inference,
     model: &str,
     source: &str,
     response: &str,
+    run: &Run,
 ) -> Result<String, serde_json::Error> {
     let doc = InferOut {
         model,
@@ -220,7 +225,7 @@ pub fn infer_json(
         scales: &inf.scales,
         notes: &inf.notes,
     };
-    let mut s = serde_json::to_string_pretty(&doc)?;
+    let mut s = serde_json::to_string_pretty(&WithRun { doc, run })?;
     s.push('\n');
     Ok(s)
 }

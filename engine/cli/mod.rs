@@ -1,7 +1,9 @@
 //! The command line: argument parsing, the subcommands, and the one place
 //! errors are rendered (`foothold: error: <message>` on stderr) and exit codes chosen.
 //!
-//! Exit codes: 0 success; 1 the fit did not converge; 2 bad input or usage.
+//! Exit codes: 0 success; 1 the fit did not converge; 2 bad input or usage,
+//! or a result that could not be written. A closed pipe on standard output
+//! (`| head -1`) is not an error: the output ends there, with no message.
 
 pub mod args;
 pub mod batch;
@@ -12,6 +14,7 @@ pub mod model_arg;
 pub mod models_cmd;
 pub mod output;
 pub mod prepare;
+pub mod provenance;
 pub mod rank_cmd;
 pub mod report_cmd;
 pub mod starts;
@@ -26,7 +29,7 @@ use std::io::Write;
 pub const EXIT_OK: i32 = 0;
 /// Exit code: the fit ran but did not converge.
 pub const EXIT_NOT_CONVERGED: i32 = 1;
-/// Exit code: bad input or usage.
+/// Exit code: bad input or usage, or a result that could not be written.
 pub const EXIT_USAGE: i32 = 2;
 
 /// How a command that ran without error ended.
@@ -56,6 +59,13 @@ where
     I: IntoIterator<Item = T>,
     T: Into<OsString> + Clone,
 {
+    let args: Vec<OsString> = args.into_iter().map(Into::into).collect();
+    let run = provenance::Run::new(
+        args.iter()
+            .skip(1)
+            .map(|a| a.to_string_lossy().into_owned())
+            .collect(),
+    );
     let cli = match Cli::try_parse_from(args) {
         Ok(c) => c,
         Err(e) => return clap_exit(e, out, err),
@@ -66,24 +76,24 @@ where
     let result = match &cli.command {
         Command::Fit(a) => layout(&a.input, a.by.as_ref(), true).and_then(|(input, by)| {
             let a = args::FitArgs { input, by, ..a.clone() };
-            fit_cmd::run_fit(&a, out, err)
+            fit_cmd::run_fit(&a, &run, out, err)
         }),
         Command::Infer(a) => layout(&a.input, None, false).and_then(|(input, _)| {
             let a = args::InferArgs { input, ..a.clone() };
-            infer_cmd::run_infer(&a, out, err)
+            infer_cmd::run_infer(&a, &run, out, err)
         }),
         Command::Rank(a) => {
             layout(&a.input, a.search.by.as_ref(), false).and_then(|(input, by)| {
                 let search = args::SearchArgs { by, ..a.search.clone() };
                 let a = args::RankArgs { input, search, ..a.clone() };
-                rank_cmd::run_rank(&a, out, err)
+                rank_cmd::run_rank(&a, &run, out, err)
             })
         }
         Command::Report(a) => {
             layout(&a.input, a.search.by.as_ref(), true).and_then(|(input, by)| {
                 let search = args::SearchArgs { by, ..a.search.clone() };
                 let a = args::ReportArgs { input, search, ..a.clone() };
-                report_cmd::run_report(&a, out, err)
+                report_cmd::run_report(&a, &run, out, err)
             })
         }
         Command::Models(a) => models_cmd::run_models(a, out),
@@ -106,8 +116,13 @@ fn clap_exit(e: clap::Error, out: &mut dyn Write, err: &mut dyn Write) -> i32 {
     let text = e.render().to_string();
     match e.kind() {
         ErrorKind::DisplayHelp | ErrorKind::DisplayVersion => {
-            let _ = out.write_all(text.as_bytes());
-            EXIT_OK
+            match output::write_stdout(text.as_bytes(), out) {
+                Ok(()) => EXIT_OK,
+                Err(e) => {
+                    let _ = writeln!(err, "foothold: error: {e}");
+                    EXIT_USAGE
+                }
+            }
         }
         ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
             let _ = err.write_all(text.as_bytes());

@@ -1,12 +1,14 @@
 //! Reading `--model` and `--x`: a library model by name or a formula, with
 //! the variable `x` renamed to a data column through the parsed tree (never
-//! by editing the text), then bound to the data's columns.
+//! by editing the text), then bound to the data's columns. A misspelt
+//! library name gets the nearest names as a hint; a data column named `e` or
+//! `pi` is that column in a formula, with a note that it hides the constant.
 
 use crate::data::Dataset;
 use crate::error::Error;
 use crate::library::{self, LibraryModel, LIBRARY_X};
 use crate::symbolic::model::ModelError;
-use crate::symbolic::parse::{parse_formula, ParsedFormula};
+use crate::symbolic::parse::{parse_formula, parse_formula_for, ParsedFormula, CONSTANTS};
 use crate::symbolic::Model;
 
 /// A resolved `--model`: the formula text to show, its parsed trees, and the
@@ -19,6 +21,69 @@ pub struct ModelSpec {
     pub parsed: ParsedFormula,
     /// The library model named by `--model`, if it was a name.
     pub library: Option<&'static LibraryModel>,
+    /// Notes for the user (warnings), e.g. a column that hides a constant.
+    pub notes: Vec<String>,
+}
+
+/// Levenshtein distance between two strings, in characters (Wagner and
+/// Fischer 1974, one row of the table kept).
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut row: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut diagonal = row[0];
+        row[0] = i + 1;
+        for (j, &cb) in b.iter().enumerate() {
+            let next = (row[j + 1] + 1)
+                .min(row[j] + 1)
+                .min(diagonal + usize::from(ca != cb));
+            diagonal = row[j + 1];
+            row[j + 1] = next;
+        }
+    }
+    row[b.len()]
+}
+
+/// True for text that reads as a name rather than a formula: letters,
+/// digits, `-` and `_` only, starting with a letter (no operators, spaces or
+/// parentheses).
+fn looks_like_name(text: &str) -> bool {
+    text.starts_with(|c: char| c.is_alphabetic())
+        && text
+            .chars()
+            .all(|c| c.is_alphanumeric() || c == '-' || c == '_')
+}
+
+/// The library names nearest to `name` (case, `_` and `-` aside), when
+/// within max(2, a quarter of its length) edits; empty when none is that close.
+pub fn nearest_library_names(name: &str) -> Vec<&'static str> {
+    let wanted: String = name.to_lowercase().replace('_', "-");
+    let limit = 2.max(wanted.chars().count() / 4);
+    let scored: Vec<(usize, &'static str)> = library::library()
+        .iter()
+        .map(|m| (edit_distance(&wanted, &m.name), m.name.as_str()))
+        .filter(|(d, _)| *d <= limit)
+        .collect();
+    let best = scored.iter().map(|(d, _)| *d).min();
+    scored
+        .into_iter()
+        .filter(|(d, _)| Some(*d) == best)
+        .map(|(_, n)| n)
+        .collect()
+}
+
+/// The notes for names of a user's formula that are columns hiding a constant.
+fn constant_notes(parsed: &ParsedFormula) -> Vec<String> {
+    CONSTANTS
+        .iter()
+        .filter(|(name, _, _)| parsed.names.iter().any(|n| n == name))
+        .map(|(name, value, spelled)| {
+            format!(
+                "'{name}' in the formula is the data column '{name}', not the constant {name} = {value:.6}…: \
+                 a column's name comes first; write {spelled} for the constant"
+            )
+        })
+        .collect()
 }
 
 /// Rebuilds formula text from parsed trees (`Param(i)` is `names[i]`).
@@ -30,29 +95,43 @@ fn formula_text(parsed: &ParsedFormula) -> String {
     }
 }
 
-/// Resolves `--model` (a library name or a formula) and applies `--x COLUMN`,
-/// which renames the formula's variable `x` to the column.
-pub fn resolve_model(model: &str, x: Option<&str>) -> Result<ModelSpec, Error> {
+/// Resolves `--model` (a library name or a formula) for a table with these
+/// `columns` and applies `--x COLUMN`, which renames the formula's variable
+/// `x` to the column. In a formula (not a library model), a column named
+/// `e` or `pi` is that column, with a note.
+pub fn resolve_model(model: &str, x: Option<&str>, columns: &[String]) -> Result<ModelSpec, Error> {
     let name = model.trim();
     let lib = library::find(name);
     let source = lib.map(|m| m.formula.as_str()).unwrap_or(model);
-    if lib.is_none() && library::is_kebab_case(name) && name.contains('-') {
-        let near: Vec<&str> = library::library()
-            .iter()
-            .map(|m| m.name.as_str())
-            .filter(|n| n.get(..3).is_some() && name.starts_with(&n[..3]))
-            .collect();
+    if lib.is_none() && looks_like_name(name) {
+        let near = nearest_library_names(name);
         let hint = if near.is_empty() {
             String::new()
         } else {
             format!(" (did you mean {}?)", near.join(", "))
         };
-        return Err(Error::Usage(format!(
-            "'{name}' is not a model in the library{hint}; `foothold models` lists them. \
-             To subtract names in a formula, put spaces around '-', e.g. 'a - b'"
-        )));
+        if !near.is_empty() {
+            return Err(Error::Usage(format!(
+                "'{name}' is not a model in the library{hint}; `foothold models` lists them"
+            )));
+        }
+        if library::is_kebab_case(name) && name.contains('-') {
+            return Err(Error::Usage(format!(
+                "'{name}' is not a model in the library; `foothold models` lists them. \
+                 To subtract names in a formula, put spaces around '-', e.g. 'a - b'"
+            )));
+        }
     }
-    let mut parsed = parse_formula(source).map_err(ModelError::from)?;
+    let mut parsed = match lib {
+        Some(_) => parse_formula(source),
+        None => parse_formula_for(source, columns),
+    }
+    .map_err(ModelError::from)?;
+    let notes = if lib.is_none() {
+        constant_notes(&parsed)
+    } else {
+        Vec::new()
+    };
     let mut rebuilt = lib.is_some();
     if let Some(col) = x {
         let Some(k) = parsed.names.iter().position(|n| n == LIBRARY_X) else {
@@ -80,6 +159,7 @@ pub fn resolve_model(model: &str, x: Option<&str>) -> Result<ModelSpec, Error> {
         text,
         parsed,
         library: lib,
+        notes,
     })
 }
 
@@ -124,7 +204,7 @@ mod tests {
 
     #[test]
     fn library_names_and_x_renames_go_through_the_tree() {
-        let s = resolve_model("michaelis-menten", Some("substrate")).unwrap();
+        let s = resolve_model("michaelis-menten", Some("substrate"), &[]).unwrap();
         assert_eq!(s.text, "vmax*substrate/(km + substrate)");
         assert!(s.library.is_some());
         let m = bind_model(&s, &data(&["substrate", "rate"]), Some("rate")).unwrap();
@@ -137,28 +217,54 @@ mod tests {
         let m = bind_model(&s, &data(&["log_dose", "y"]), None).unwrap();
         assert_eq!(m.params, vec!["baseline", "full_effect", "x_half", "slope"]);
         // A name containing x is not touched: only the variable x is renamed.
-        let s = resolve_model("y = xa*exp(-k*x) + x2", Some("t")).unwrap();
+        let s = resolve_model("y = xa*exp(-k*x) + x2", Some("t"), &[]).unwrap();
         assert_eq!(s.text, "y = xa*exp(-k*t) + x2");
         // Without --x a formula keeps the user's text exactly.
-        let s = resolve_model("y = a*exp(-k*x)", None).unwrap();
+        let s = resolve_model("y = a*exp(-k*x)", None, &[]).unwrap();
         assert_eq!(s.text, "y = a*exp(-k*x)");
         assert!(s.library.is_none());
     }
 
     #[test]
     fn mistakes_are_reported() {
-        let e = resolve_model("a*exp(-k*t)", Some("minutes"))
+        let e = resolve_model("a*exp(-k*t)", Some("minutes"), &[])
             .unwrap_err()
             .to_string();
         assert!(e.contains("has no 'x'"), "{e}");
-        let e = resolve_model("a*x + k", Some("k")).unwrap_err().to_string();
+        let e = resolve_model("a*x + k", Some("k"), &[]).unwrap_err().to_string();
         assert!(e.contains("already uses the name 'k'"), "{e}");
-        let e = resolve_model("exp-decai", None).unwrap_err().to_string();
+        let e = resolve_model("exp-decai", None, &[]).unwrap_err().to_string();
         assert!(e.contains("foothold models"), "{e}");
-        let s = resolve_model("exp-decay", None).unwrap();
+        let s = resolve_model("exp-decay", None, &[]).unwrap();
         let e = bind_model(&s, &data(&["x", "y", "k"]), None)
             .unwrap_err()
             .to_string();
         assert!(e.contains("parameter 'k'"), "{e}");
+    }
+
+    #[test]
+    fn misspelt_names_get_the_nearest_library_names() {
+        assert_eq!(edit_distance("kitten", "sitting"), 3);
+        assert_eq!(edit_distance("", "abc"), 3);
+        assert_eq!(nearest_library_names("michaelis_menten"), vec!["michaelis-menten"]);
+        assert_eq!(nearest_library_names("Logistic3"), vec!["logistic-3"]);
+        assert!(nearest_library_names("a").is_empty());
+        let e = resolve_model("michaelis_menten", None, &[]).unwrap_err().to_string();
+        assert!(e.contains("did you mean michaelis-menten?"), "{e}");
+        // A name near no library name is read as a formula (and refused when bound).
+        assert!(resolve_model("rate", None, &[]).is_ok());
+    }
+
+    #[test]
+    fn a_column_named_e_is_the_column_with_a_note() {
+        let cols: Vec<String> = ["x", "e"].iter().map(|s| s.to_string()).collect();
+        let s = resolve_model("e = a*x^b", None, &cols).unwrap();
+        assert_eq!(s.notes.len(), 1);
+        assert!(s.notes[0].contains("'e' in the formula is the data column 'e'"), "{:?}", s.notes);
+        let m = bind_model(&s, &data(&["x", "e"]), None).unwrap();
+        assert_eq!(m.response, "e");
+        // The constant where no column has the name: no note.
+        let s = resolve_model("y = a*e^(b*x)", None, &cols[..1]).unwrap();
+        assert!(s.notes.is_empty());
     }
 }

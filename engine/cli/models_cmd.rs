@@ -45,6 +45,6 @@ pub fn run_models(args: &ModelsArgs, out: &mut dyn Write) -> Result<Outcome, Err
             t
         }
     };
-    let _ = out.write_all(text.as_bytes());
+    super::output::emit(&text, None, out)?;
     Ok(Outcome::Success)
 }

@@ -137,7 +137,7 @@ fn layout_note(notes: &ReadNotes) -> String {
 /// The name of the pooled response: the formula's left-hand side when it
 /// names one column not in the table (or among the stacked ones), else `y`.
 fn response_name(input: &InputArgs, data: &Dataset, stacked: &[String]) -> String {
-    let Ok(spec) = resolve_model(&input.model, input.x.as_deref()) else {
+    let Ok(spec) = resolve_model(&input.model, input.x.as_deref(), &data.columns) else {
         return "y".into();
     };
     let Some(lhs) = &spec.parsed.lhs else {
@@ -175,7 +175,7 @@ pub fn model_for(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Model)
     if let Some(x) = &input.x {
         check_column(data, "--x", x)?;
     }
-    let spec = resolve_model(&input.model, input.x.as_deref())?;
+    let spec = resolve_model(&input.model, input.x.as_deref(), &data.columns)?;
     let model = bind_model(&spec, data, input.y.as_deref())?;
     if let Some(y) = &input.y {
         if model.lhs.is_some() && model.response != *y {
@@ -186,6 +186,16 @@ pub fn model_for(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Model)
         }
     }
     Ok((spec, model))
+}
+
+/// Resolves the model of the input arguments and binds it to the rows it can
+/// use ([`model_for`], then [`bind_rows`]); the model's notes (a column that
+/// hides a constant) join the data's warnings.
+pub fn bind_input(input: &InputArgs, data: &Dataset) -> Result<(ModelSpec, Bound), Error> {
+    let (spec, model) = model_for(input, data)?;
+    let mut bound = bind_rows(model, data)?;
+    bound.context.warnings.extend(spec.notes.iter().cloned());
+    Ok((spec, bound))
 }
 
 /// A model bound to the rows it can use, with the report's context.

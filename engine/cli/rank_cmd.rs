@@ -3,7 +3,8 @@
 //! chosen start can be plugged into any other fitter.
 
 use super::args::{Format, RankArgs};
-use super::prepare::{bind_rows, model_for, read_input};
+use super::prepare::{bind_input, read_input};
+use super::provenance::Run;
 use super::Outcome;
 use crate::auto_start::infer_and_search;
 use crate::error::Error;
@@ -35,6 +36,36 @@ pub struct RankedCandidate {
     /// minimum running to infinity ranks below proper minima within 1 % of
     /// its sum of squares, `search::rank`); `null` when it is not demoted.
     pub demoted: Option<String>,
+    /// Set when several minima of equal cost on one flat valley are reported
+    /// as this one entry.
+    pub flat_valley: Option<FlatValley>,
+}
+
+/// A flat valley in the ranked list: how many minima lie on it and which
+/// parameters change along it.
+#[derive(Debug, Serialize)]
+pub struct FlatValley {
+    pub minima: usize,
+    pub direction: Vec<String>,
+    pub ssr_low: Option<f64>,
+    pub ssr_high: Option<f64>,
+}
+
+/// The flat-valley note as tables print it.
+pub fn valley_note(v: &FlatValley) -> String {
+    let g = |x: Option<f64>| x.map(|x| format_number(x, 7)).unwrap_or_else(|| "n/a".into());
+    format!(
+        "flat valley: {} minima of equal cost (ssr {} to {}) along a direction moving {}; \
+         reported once, at its lowest point",
+        v.minima,
+        g(v.ssr_low),
+        g(v.ssr_high),
+        if v.direction.is_empty() {
+            "no parameter measurably".to_string()
+        } else {
+            v.direction.join(", ")
+        }
+    )
 }
 
 /// Ranks of the proper minima placed above minimum `k` although their sums of
@@ -112,6 +143,16 @@ pub fn ranked(names: &[String], outcome: &SearchOutcome, top: usize) -> Vec<Rank
                 .filter_map(|&i| names.get(i).cloned())
                 .collect(),
             demoted: demotion_note(outcome, k),
+            flat_valley: m.valley.as_ref().map(|v| FlatValley {
+                minima: v.minima,
+                direction: v
+                    .direction
+                    .iter()
+                    .filter_map(|&i| names.get(i).cloned())
+                    .collect(),
+                ssr_low: finite(v.ssr_low),
+                ssr_high: finite(v.ssr_high),
+            }),
         })
         .collect()
 }
@@ -124,6 +165,7 @@ pub fn percent(share: f64) -> String {
 /// Runs `rank`.
 pub fn run_rank(
     args: &RankArgs,
+    run: &Run,
     out: &mut dyn Write,
     err: &mut dyn Write,
 ) -> Result<Outcome, Error> {
@@ -134,26 +176,23 @@ pub fn run_rank(
     }
     let verbose = args.output.verbose;
     let data = read_input(&args.input, verbose, err)?;
-    let (_, model) = model_for(&args.input, &data)?;
-    let bound = bind_rows(model, &data)?;
+    let (_, bound) = bind_input(&args.input, &data)?;
     if !args.output.quiet {
         for w in &bound.context.warnings {
             let _ = writeln!(err, "foothold: warning: {w}");
         }
     }
     let search_clock = std::time::Instant::now();
-    let (_, outcome) = infer_and_search(&bound.problem, &search_options(&args.search.budget))?;
+    let options = search_options(&args.search.budget);
+    let (_, outcome) = infer_and_search(&bound.problem, &options)?;
+    let run = run.searched(&options);
     if verbose {
         let _ = writeln!(
             err,
             "foothold: search: {} starts tried, {} distinct minima; stopped: {}; {:.1} ms",
             outcome.candidates_tried,
             outcome.minima.len(),
-            if outcome.stopped_by_time {
-                "time limit"
-            } else {
-                "every start tried"
-            },
+            outcome.stop.words(),
             search_clock.elapsed().as_secs_f64() * 1e3
         );
     }
@@ -166,8 +205,10 @@ pub fn run_rank(
             "data": bound.context.data,
             "response": bound.context.response,
             "candidates_tried": outcome.candidates_tried,
+            "search_stop": outcome.stop,
             "minima_found": outcome.minima.len(),
             "candidates": list,
+            "run": run,
         })
     };
     let text = match args.output.format {
@@ -199,10 +240,11 @@ pub fn run_rank(
         }
         Format::Table => {
             let mut s = format!(
-                "model   {}\nsearch  {} local fits, {} distinct minima\n",
+                "model   {}\nsearch  {} local fits, {} distinct minima; stopped: {}\n",
                 bound.problem.model.text,
                 outcome.candidates_tried,
-                outcome.minima.len()
+                outcome.minima.len(),
+                outcome.stop.words()
             );
             for c in &list {
                 let g = |v: Option<f64>| {
@@ -228,6 +270,9 @@ pub fn run_rank(
                 if let Some(d) = &c.demoted {
                     s.push_str(&format!("  note: {d}\n"));
                 }
+                if let Some(v) = &c.flat_valley {
+                    s.push_str(&format!("  note: {}\n", valley_note(v)));
+                }
                 let w = c
                     .parameters
                     .iter()
@@ -251,7 +296,7 @@ pub fn run_rank(
             s
         }
     };
-    let _ = out.write_all(text.as_bytes());
+    super::output::emit(&text, None, out)?;
     Ok(if outcome.minima.iter().any(|m| m.divergent.is_empty()) {
         Outcome::Success
     } else {

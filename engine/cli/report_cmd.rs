@@ -5,7 +5,8 @@
 use super::args::ReportArgs;
 use super::batch_report::run_batch_report;
 use super::output::{emit, write_plots};
-use super::prepare::{bind_rows, model_for, read_input, run_fit, starting_values, starts_given};
+use super::prepare::{bind_input, read_input, run_fit, starting_values, starts_given};
+use super::provenance::Run;
 use super::rank_cmd::{ranked, search_options};
 use super::Outcome;
 use crate::auto_start::{best_start, infer_and_search};
@@ -128,15 +129,15 @@ fn searched_starts(problem: &Problem, opts: &SearchOptions) -> Result<SearchedSt
 /// Runs `report`; the page goes to `--out` (atomically) or to `out`.
 pub fn run_report(
     args: &ReportArgs,
+    run: &Run,
     out: &mut dyn Write,
     err: &mut dyn Write,
 ) -> Result<Outcome, Error> {
     let data = read_input(&args.input, false, err)?;
     if args.search.by.is_some() {
-        return run_batch_report(args, &data, out, err);
+        return run_batch_report(args, run, &data, out, err);
     }
-    let (spec, model) = model_for(&args.input, &data)?;
-    let bound = bind_rows(model, &data)?;
+    let (spec, bound) = bind_input(&args.input, &data)?;
     let problem = &bound.problem;
     let given = starts_given(&args.start);
     let (start, starts, minima) = if given {
@@ -155,6 +156,10 @@ pub fn run_report(
         (start, rows, Vec::new())
     } else {
         searched_starts(problem, &search_options(&args.search.budget))?
+    };
+    let run = match given {
+        true => run.clone(),
+        false => run.searched(&search_options(&args.search.budget)),
     };
     let (result, summary) = run_fit(problem, &start);
     let x = problem.x.first().map(Vec::as_slice).unwrap_or(&[]);
@@ -186,7 +191,7 @@ pub fn run_report(
         summary: &summary,
         warnings,
     };
-    let page = render_report(&report_input(&parts));
+    let page = run.add_to_page(render_report(&report_input(&parts)));
     if let Some(dir) = &args.plots {
         let x_name = problem.model.vars.first().cloned().unwrap_or_default();
         let panels = survey_panels(&features, &x_name, &bound.context.response);

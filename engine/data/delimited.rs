@@ -55,8 +55,7 @@ type Header = (usize, usize, Vec<String>);
 
 /// The header given by `--header-row N` (a line number of the file).
 fn header_at_line(text: &str, sep: Separator, source: &str, n: usize) -> Result<Header, DataError> {
-    let mut before = 0;
-    for r in records(text, sep, source) {
+    for (before, r) in records(text, sep, source).enumerate() {
         let (line, cells) = r?;
         if line == n {
             return Ok((before, line, cells));
@@ -64,7 +63,6 @@ fn header_at_line(text: &str, sep: Separator, source: &str, n: usize) -> Result<
         if line > n {
             break;
         }
-        before += 1;
     }
     let lines = text.lines().count();
     if n > lines || n == 0 {

@@ -241,8 +241,11 @@ mod tests {
 
     #[test]
     fn quoted_line_breaks_and_line_numbers() {
-        let r = all("x,note\n\n1,\"two\nlines\"\n# c\n  \n2, \"q \"\"z\"\"\"\n", Separator::Byte(b','))
-            .unwrap();
+        let r = all(
+            "x,note\n\n1,\"two\nlines\"\n# c\n  \n2, \"q \"\"z\"\"\"\n",
+            Separator::Byte(b','),
+        )
+        .unwrap();
         assert_eq!(
             r,
             vec![

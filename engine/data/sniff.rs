@@ -198,10 +198,7 @@ mod tests {
             detect_separator("x;y\n0,5;1,25\n1,5;2\n"),
             Separator::Byte(b';')
         );
-        assert_eq!(
-            detect_separator("x\ty\n0,5\t1\n"),
-            Separator::Byte(b'\t')
-        );
+        assert_eq!(detect_separator("x\ty\n0,5\t1\n"), Separator::Byte(b'\t'));
         assert_eq!(
             detect_separator("Plate 3, run 2\nx,y\n1,2\n3,4\n"),
             Separator::Byte(b',')
@@ -213,7 +210,10 @@ mod tests {
         );
         assert_eq!(detect_separator("x y\n1 2\n"), Separator::Whitespace);
         assert_eq!(detect_separator("y\n1\n"), Separator::Whitespace);
-        assert_eq!(detect_separator("x   y\n 1 2\n3\t 4.5\n"), Separator::Whitespace);
+        assert_eq!(
+            detect_separator("x   y\n 1 2\n3\t 4.5\n"),
+            Separator::Whitespace
+        );
         assert_eq!(detect_separator("a,b"), Separator::Byte(b','));
     }
 
@@ -273,7 +273,10 @@ mod tests {
         );
         // A title as wide as the table, right above the header.
         assert_eq!(
-            find_header(&[vec![Text, Text], vec![Text, Text], vec![Number, Text]], true),
+            find_header(
+                &[vec![Text, Text], vec![Text, Text], vec![Number, Text]],
+                true
+            ),
             Some(1)
         );
     }

@@ -106,12 +106,13 @@ fn glob(pattern: &str, name: &str) -> bool {
     let (mut i, mut j) = (0, 0);
     let mut star: Option<(usize, usize)> = None;
     while j < n.len() {
-        if i < p.len() && (p[i] == '?' || p[i] == n[j]) {
-            i += 1;
-            j += 1;
-        } else if i < p.len() && p[i] == '*' {
+        // A '*' of the pattern is a wildcard even where the name holds a '*'.
+        if i < p.len() && p[i] == '*' {
             star = Some((i, j));
             i += 1;
+        } else if i < p.len() && (p[i] == '?' || p[i] == n[j]) {
+            i += 1;
+            j += 1;
         } else if let Some((si, sj)) = star {
             i = si + 1;
             j = sj + 1;
@@ -195,7 +196,8 @@ pub fn stack_columns(
             path: data.source.clone(),
             column: label.to_string(),
         };
-        out.text.push(b.finish(label, first, (0, out.columns.len() - 1)));
+        out.text
+            .push(b.finish(label, first, (0, out.columns.len() - 1)));
     }
     Ok(Stacked {
         empty_cells: n * stacked.len() - cells.len(),
@@ -234,8 +236,13 @@ mod tests {
         );
         let e = m("rep1..rep4").unwrap_err();
         assert!(matches!(&e, DataError::UnknownColumn { name, .. } if name == "rep4"));
-        assert!(matches!(m("rep1,rep9").unwrap_err(), DataError::UnknownColumn { .. }));
+        assert!(matches!(
+            m("rep1,rep9").unwrap_err(),
+            DataError::UnknownColumn { .. }
+        ));
         assert!(glob("S*1", "S11") && glob("*", "") && !glob("S?", "S10"));
+        // Found by the read_table fuzzer: a name holding '*' itself.
+        assert!(glob("*", "*1") && glob("a*", "a*b") && glob("*b", "*b"));
         assert_eq!(
             range_names("S08..S10", 100).unwrap(),
             vec!["S08", "S09", "S10"]

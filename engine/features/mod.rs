@@ -105,8 +105,48 @@ impl DataFeatures {
     }
 }
 
-/// Build the six views of (x, y) and detect the features of each.
+/// Most rows the detectors read: longer data are read through a summary of
+/// this many rows (see [`summary_rows`]), so that detection costs one sort plus
+/// a bounded amount of work whatever the length (the segment search is
+/// quadratic and the periodogram is frequencies × points in what they read).
+pub const SUMMARY_POINTS: usize = 400;
+
+/// Indices of at most `max` rows evenly spaced in the order of `x` (the rows of
+/// lowest and highest x always among them), in that order; every row, in x
+/// order, when there are no more than `max`. A decimated, sorted copy keeps each
+/// point's own noise (unlike bin means), so noise estimates read from it stay
+/// those of single rows. O(n log n) for the sort.
+pub fn summary_rows(x: &[f64], max: usize) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..x.len()).collect();
+    order.sort_by(|&a, &b| x[a].total_cmp(&x[b]).then(a.cmp(&b)));
+    let n = order.len();
+    if n <= max || max < 2 {
+        return order;
+    }
+    (0..max)
+        .map(|k| order[((k as f64) * (n - 1) as f64 / (max - 1) as f64).round() as usize])
+        .collect()
+}
+
+/// Build the six views of (x, y) and detect the features of each; data longer
+/// than [`SUMMARY_POINTS`] are read through [`summary_rows`] (`n_input` still
+/// counts every row).
 pub fn detect(x: &[f64], y: &[f64]) -> DataFeatures {
+    let n = x.len().min(y.len());
+    if n > SUMMARY_POINTS {
+        let rows = summary_rows(&x[..n], SUMMARY_POINTS);
+        let xs: Vec<f64> = rows.iter().map(|&i| x[i]).collect();
+        let ys: Vec<f64> = rows.iter().map(|&i| y[i]).collect();
+        let mut f = detect_all(&xs, &ys);
+        f.n_input = n;
+        f.sign = shape::sign(&y[..n]);
+        return f;
+    }
+    detect_all(x, y)
+}
+
+/// [`detect`] on every row given.
+fn detect_all(x: &[f64], y: &[f64]) -> DataFeatures {
     let views: Vec<ViewReport> = ALL_VIEWS
         .iter()
         .map(|&(ax, ty)| {

@@ -15,6 +15,9 @@ pub struct LsqSolution {
     pub rank: usize,
 }
 
+/// Most columns [`lstsq_ssr`] handles with stack scratch (more go to [`lstsq`]).
+const SMALL: usize = 8;
+
 /// Relative size below which a pivot column counts as dependent on the earlier ones.
 const RANK_TOL: f64 = 1e-11;
 
@@ -151,27 +154,31 @@ pub fn lstsq_ssr(a: &[f64], n: usize, m: usize, b: &[f64]) -> Option<f64> {
     if a.len() < n * m || b.len() < n {
         return None;
     }
-    let cols: Vec<&[f64]> = (0..m).map(|j| &a[j * n..(j + 1) * n]).collect();
-    let mut scale = vec![0.0; m];
-    for j in 0..m {
-        let s = cols[j].iter().map(|v| v * v).sum::<f64>().sqrt();
+    if m > SMALL {
+        return lstsq(a, n, m, b).map(|s| s.ssr);
+    }
+    // fixed-size scratch on the stack: no allocation per grid point
+    let col = |j: usize| &a[j * n..(j + 1) * n];
+    let mut scale = [0.0; SMALL];
+    for (j, sc) in scale.iter_mut().enumerate().take(m) {
+        let s = col(j).iter().map(|v| v * v).sum::<f64>().sqrt();
         if !s.is_finite() {
             return None;
         }
-        scale[j] = s;
+        *sc = s;
     }
-    if scale.contains(&0.0) || !b[..n].iter().all(|v| v.is_finite()) {
+    if scale[..m].contains(&0.0) || !b[..n].iter().all(|v| v.is_finite()) {
         return lstsq(a, n, m, b).map(|s| s.ssr);
     }
     // Gram matrix and right side of the scaled problem
-    let mut g = vec![0.0; m * m];
-    let mut rhs = vec![0.0; m];
+    let mut g = [0.0; SMALL * SMALL];
+    let mut rhs = [0.0; SMALL];
     for i in 0..m {
         for j in 0..=i {
-            let d = cols[i].iter().zip(cols[j]).map(|(x, y)| x * y).sum::<f64>();
+            let d = col(i).iter().zip(col(j)).map(|(x, y)| x * y).sum::<f64>();
             g[i * m + j] = d / (scale[i] * scale[j]);
         }
-        rhs[i] = cols[i].iter().zip(&b[..n]).map(|(x, y)| x * y).sum::<f64>() / scale[i];
+        rhs[i] = col(i).iter().zip(&b[..n]).map(|(x, y)| x * y).sum::<f64>() / scale[i];
     }
     // Cholesky G = L·Lᵀ in place (lower triangle)
     for j in 0..m {
@@ -207,11 +214,14 @@ pub fn lstsq_ssr(a: &[f64], n: usize, m: usize, b: &[f64]) -> Option<f64> {
         z[i] /= g[i * m + i];
     }
     // explicit residual (no cancellation for nearly exact fits)
+    for j in 0..m {
+        z[j] /= scale[j];
+    }
     let mut ssr = 0.0;
-    for r in 0..n {
-        let mut f = b[r];
-        for j in 0..m {
-            f -= cols[j][r] * z[j] / scale[j];
+    for (r, &br) in b[..n].iter().enumerate() {
+        let mut f = br;
+        for (j, zj) in z.iter().enumerate().take(m) {
+            f -= a[j * n + r] * zj;
         }
         ssr += f * f;
     }

@@ -111,6 +111,18 @@ pub struct Inference {
     pub notes: Vec<String>,
 }
 
+/// Rows above which the search for starts works on a summary of the data:
+/// features, grid scans and the short reduced fits read this many rows evenly
+/// spaced in the order of the first predictor ([`crate::features::summary_rows`]);
+/// the linear parameters are then re-solved, the best start refitted briefly
+/// and every candidate scored on all rows. The scans cost O(summary) per grid
+/// point instead of O(rows), so inference grows with the rows only through one
+/// sort and a few passes over them.
+pub const SUMMARY_ROWS: usize = 500;
+
+/// Iterations of the short reduced fit of the best start on all rows.
+const FULL_REFINE_ITERATIONS: usize = 12;
+
 /// Infers starting values for every parameter of `problem` from the model and the data.
 pub fn infer(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferError> {
     let n = problem.y.len();
@@ -125,6 +137,100 @@ pub fn infer(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferE
             rows: n,
         });
     }
+    if n > SUMMARY_ROWS {
+        return infer_on_summary(problem, opts);
+    }
+    infer_all_rows(problem, opts)
+}
+
+/// [`infer`] for long data: inference on a summary of [`SUMMARY_ROWS`] rows,
+/// then the linear parameters re-solved and the candidates re-scored on every
+/// row, the best one first given a short reduced fit on every row.
+fn infer_on_summary(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferError> {
+    let n = problem.y.len();
+    let rows = crate::features::summary_rows(&problem.x[0], SUMMARY_ROWS);
+    let mut sub = problem.clone();
+    sub.y = rows.iter().map(|&i| problem.y[i]).collect();
+    sub.x = problem
+        .x
+        .iter()
+        .map(|c| rows.iter().map(|&i| c[i]).collect())
+        .collect();
+    sub.row_index = rows.iter().map(|&i| problem.row_index[i]).collect();
+    let mut inf = infer_all_rows(&sub, opts)?;
+    drop(sub);
+    inf.features.n_input = n;
+    let proj = Projector::new(problem);
+    let nl = proj.sep.nonlinear.clone();
+    let mut first = true;
+    for c in inf.candidates.iter_mut() {
+        let mut p = c.params.clone();
+        if first && !nl.is_empty() {
+            let (q, _) = proj.refine(&p, &nl, FULL_REFINE_ITERATIONS);
+            p = q;
+        } else {
+            proj.project(&mut p);
+        }
+        first = false;
+        let s = proj.ssr_at(&p);
+        if s.is_finite() {
+            c.params = p;
+            c.ssr = s;
+        } else {
+            let s0 = proj.ssr_at(&c.params);
+            c.ssr = if s0.is_finite() { s0 } else { f64::INFINITY };
+        }
+    }
+    let mut order: Vec<(usize, Candidate)> =
+        std::mem::take(&mut inf.candidates).into_iter().enumerate().collect();
+    order.retain(|(_, c)| c.ssr.is_finite());
+    // stable: the refined first candidate stays first on a tie
+    order.sort_by(|a, b| a.1.ssr.total_cmp(&b.1.ssr));
+    let same_candidate = order.first().is_some_and(|(i, _)| *i == 0);
+    inf.candidates = order.into_iter().map(|(_, c)| c).collect();
+    let best = inf.candidates.first().ok_or(InferError::NothingFinite)?;
+    inf.start = best.params.clone();
+    for (k, ps) in inf.parameters.iter_mut().enumerate() {
+        let v = inf.start[k];
+        if !same_candidate {
+            ps.derivation = format!(
+                "{}: from {}, the best candidate on all {n} rows",
+                ps.name, best.strategy
+            );
+        } else if (v - ps.start).abs() > 1e-9 * v.abs().max(ps.start.abs()) {
+            ps.derivation = if proj.sep.linear.contains(&k) {
+                format!(
+                    "{}; re-solved on all {n} rows: {}",
+                    ps.derivation,
+                    draft::num(v)
+                )
+            } else {
+                format!(
+                    "{}; a short reduced fit on all {n} rows took it to {}",
+                    ps.derivation,
+                    draft::num(v)
+                )
+            };
+        }
+        ps.start = v;
+    }
+    inf.notes.retain(|t| !t.starts_with("best start from"));
+    inf.notes.push(format!(
+        "features, grid scans and short fits read {} of the {n} rows (evenly spaced in the order of {}); the linear parameters and every residual sum of squares use all rows",
+        rows.len(),
+        problem.model.vars.first().map(String::as_str).unwrap_or("x")
+    ));
+    inf.notes.push(format!(
+        "best start from {} (residual sum of squares {} on all rows)",
+        best.strategy,
+        draft::num(best.ssr)
+    ));
+    Ok(inf)
+}
+
+/// [`infer`] reading every row.
+fn infer_all_rows(problem: &Problem, opts: &InferOptions) -> Result<Inference, InferError> {
+    let model = &problem.model;
     let features = detect(&problem.x[0], &problem.y);
     let roles = roles(model);
     let sc = scales::param_scales(problem, &roles);

@@ -195,6 +195,91 @@ pub fn divergent_params(
         .collect()
 }
 
+/// Sums of squares of two minima agreeing within this relative difference may
+/// lie on one flat valley.
+pub const VALLEY_SSR_RTOL: f64 = 1e-5;
+/// Most the sum of squares may rise (relative) at the points t = ¼, ½, ¾ of
+/// the segment between two such minima for them to count as one flat valley.
+pub const VALLEY_RISE_RTOL: f64 = 1e-3;
+
+/// A minimum as the flat-valley test sees it.
+pub struct ValleyPoint<'a> {
+    /// The point.
+    pub params: &'a [f64],
+    /// Sum of squares there.
+    pub ssr: f64,
+    /// Its divergent parameters ([`divergent_params`]).
+    pub divergent: &'a [usize],
+}
+
+/// Groups minima lying on one flat valley: `group[i]` is the smallest index of
+/// the valley holding minimum i (i itself when alone). Two minima join when
+/// the same parameters are divergent, their sums of squares agree within
+/// [`VALLEY_SSR_RTOL`], and the sum of squares along the straight segment
+/// between them (`cost` at t = ¼, ½, ¾) rises by at most [`VALLEY_RISE_RTOL`]
+/// over the higher end: the segment then runs along a near-null direction of
+/// the Jacobian, where a local fitter stops anywhere. Valleys are the
+/// connected components of that relation (single linkage), so a curved valley
+/// joins through its nearer members.
+pub fn flat_valleys(points: &[ValleyPoint], cost: impl Fn(&[f64]) -> f64) -> Vec<usize> {
+    let n = points.len();
+    let mut group: Vec<usize> = (0..n).collect();
+    fn root(g: &mut [usize], mut i: usize) -> usize {
+        while g[i] != i {
+            g[i] = g[g[i]];
+            i = g[i];
+        }
+        i
+    }
+    for i in 0..n {
+        for j in (i + 1)..n {
+            let (a, b) = (&points[i], &points[j]);
+            if a.divergent != b.divergent
+                || a.params.len() != b.params.len()
+                || !same_ssr(a.ssr, b.ssr, VALLEY_SSR_RTOL, 0.0)
+                || root(&mut group, i) == root(&mut group, j)
+            {
+                continue;
+            }
+            let top = a.ssr.max(b.ssr);
+            let flat = [0.25, 0.5, 0.75].iter().all(|&t| {
+                let p: Vec<f64> = a
+                    .params
+                    .iter()
+                    .zip(b.params)
+                    .map(|(x, y)| x + t * (y - x))
+                    .collect();
+                let c = cost(&p);
+                c.is_finite() && c <= top * (1.0 + VALLEY_RISE_RTOL)
+            });
+            if flat {
+                let (ri, rj) = (root(&mut group, i), root(&mut group, j));
+                let (lo, hi) = (ri.min(rj), ri.max(rj));
+                group[hi] = lo;
+            }
+        }
+    }
+    (0..n).map(|i| root(&mut group, i)).collect()
+}
+
+/// Parameters that change along a valley: those whose values across `points`
+/// differ by more than `rtol` relative to their size (or typical scale).
+pub fn valley_direction(points: &[&[f64]], scales: &[ParamScale], rtol: f64) -> Vec<usize> {
+    let Some(first) = points.first() else {
+        return Vec::new();
+    };
+    (0..first.len())
+        .filter(|&i| {
+            let unit = scales.get(i).map(|s| s.unit()).unwrap_or(1.0);
+            let vals: Vec<f64> = points.iter().filter_map(|p| p.get(i).copied()).collect();
+            let lo = vals.iter().cloned().fold(f64::INFINITY, f64::min);
+            let hi = vals.iter().cloned().fold(f64::NEG_INFINITY, f64::max);
+            let size = lo.abs().max(hi.abs()).max(unit);
+            (hi - lo) > rtol * size
+        })
+        .collect()
+}
+
 /// One group of end points: a distinct minimum as the search sees it.
 #[derive(Debug, Clone)]
 pub struct Basin {
@@ -382,4 +467,31 @@ mod tests {
         let flat = DMatrix::zeros(2, 3);
         assert_eq!(divergent_params(&[1.0, 2.0, 3.0], &flat, &s), vec![0, 1, 2]);
     }
+
+    /// Cost (p₀·p₁ − 1)² + 1: a curved flat valley p₀·p₁ = 1 at cost 1.
+    #[test]
+    fn minima_on_a_flat_valley_join_and_a_ridge_keeps_them_apart() {
+        let valley = |p: &[f64]| (p[0] * p[1] - 1.0).powi(2) + 1.0;
+        let pts = [vec![1.0, 1.0], vec![1.1, 1.0 / 1.1], vec![1.2, 1.0 / 1.2], vec![-1.0, -1.0]];
+        let vp: Vec<ValleyPoint> = pts
+            .iter()
+            .map(|p| ValleyPoint {
+                params: p,
+                ssr: valley(p),
+                divergent: &[],
+            })
+            .collect();
+        // The first three join along the valley (single linkage); the mirror
+        // branch at (−1, −1) lies across a ridge of cost 2 at the origin.
+        assert_eq!(flat_valleys(&vp, valley), vec![0, 0, 0, 3]);
+        let ends: Vec<&[f64]> = pts[..3].iter().map(|p| p.as_slice()).collect();
+        assert_eq!(valley_direction(&ends, &[], 1e-3), vec![0, 1]);
+        // Different costs never join.
+        let vp2 = [
+            ValleyPoint { params: &pts[0], ssr: 1.0, divergent: &[] },
+            ValleyPoint { params: &pts[1], ssr: 1.1, divergent: &[] },
+        ];
+        assert_eq!(flat_valleys(&vp2, valley), vec![0, 1]);
+    }
+
 }

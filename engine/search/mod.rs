@@ -10,6 +10,7 @@
 //! only between batches; with one set, how many batches run depends on the
 //! machine's speed, and so may the outcome.
 
+pub mod adaptive;
 pub mod candidates;
 pub mod cluster;
 pub mod outcome;
@@ -23,8 +24,9 @@ pub mod symmetry;
 #[cfg(test)]
 mod tests;
 
+pub use adaptive::SearchStop;
 pub use candidates::{find_symmetries, Candidate, Origin};
-pub use outcome::{Minimum, Run, SearchOutcome};
+pub use outcome::{Minimum, Run, SearchOutcome, Valley};
 pub use scale::{ParamScale, SignFreedom};
 pub use symmetry::{find_sign_flips, find_signed_swaps};
 
@@ -38,8 +40,13 @@ use std::time::{Duration, Instant};
 /// Budgets and settings of a search.
 #[derive(Debug, Clone)]
 pub struct SearchOptions {
-    /// Number of local fits (candidate starts), inferred starts included.
+    /// Most local fits (candidate starts), inferred starts included: a
+    /// ceiling, not a quota, when `noise_sd` is set (see [`adaptive`]).
     pub starts: usize,
+    /// Noise standard deviation of the response, when known: the search may
+    /// then stop early once the inferred start fits to this level and further
+    /// starts keep returning to its minimum ([`adaptive::settled`]).
+    pub noise_sd: Option<f64>,
     /// Seed of the quasi-random points: same seed, same outcome.
     pub seed: u64,
     /// Wall-time limit, checked only between batches (makes results speed-dependent).
@@ -70,6 +77,7 @@ impl Default for SearchOptions {
     fn default() -> Self {
         SearchOptions {
             starts: 64,
+            noise_sd: None,
             seed: 0x00F0_07E0_1D5E_ED00,
             time_limit: None,
             top: 0,
@@ -168,12 +176,24 @@ pub fn search(
     };
     let mut basins = Basins::default();
     let mut done: Vec<(Refined, bool)> = Vec::new();
-    let mut stopped_by_time = false;
-    for (b, chunk) in cands.chunks(batch).enumerate() {
+    let mut stop = SearchStop::EveryStartTried;
+    let noise_sd = opts.noise_sd.filter(|s| s.is_finite() && *s > 0.0);
+    for (b, range) in adaptive::chunks(cands.len(), batch, noise_sd.is_some())
+        .into_iter()
+        .enumerate()
+    {
         if b > 0 && opts.time_limit.is_some_and(|t| clock.elapsed() >= t) {
-            stopped_by_time = true;
+            stop = SearchStop::TimeLimit;
             break;
         }
+        if let Some(sd) = noise_sd {
+            if b > 0 && adaptive::settled(&basins, sd, problem.n_obs(), n) {
+                stop = SearchStop::Settled;
+                break;
+            }
+        }
+        let full = range.start < batch;
+        let chunk = &cands[range];
         let known: Vec<KnownMinimum> = basins
             .list
             .iter()
@@ -185,7 +205,6 @@ pub fn search(
                 divergent: k.divergent.clone(),
             })
             .collect();
-        let full = b == 0;
         let results: Vec<Refined> = chunk
             .par_iter()
             .map(|c| {
@@ -229,26 +248,62 @@ pub fn search(
     }
 
     let total = done.len();
-    let minima: Vec<Minimum> = basins
+    // Minima of equal cost on one flat valley are reported once (issue 10):
+    // `valley_of[b]` is the valley (smallest basin index) of basin b.
+    let points: Vec<cluster::ValleyPoint> = basins
         .list
         .iter()
-        .map(|basin| {
+        .map(|b| cluster::ValleyPoint {
+            params: &b.params,
+            ssr: b.ssr,
+            divergent: &b.divergent,
+        })
+        .collect();
+    let valley_of = cluster::flat_valleys(&points, |p| refine::sum_of_squares(problem, p));
+    let heads: Vec<usize> = (0..basins.list.len())
+        .filter(|&b| valley_of[b] == b)
+        .collect();
+    let minima: Vec<Minimum> = heads
+        .iter()
+        .map(|&head| {
+            let group: Vec<&cluster::Basin> = basins
+                .list
+                .iter()
+                .enumerate()
+                .filter(|&(b, _)| valley_of[b] == head)
+                .map(|(_, basin)| basin)
+                .collect();
+            // The lowest member stands for the valley (the first on a tie).
+            let basin = group
+                .iter()
+                .copied()
+                .min_by(|a, b| a.ssr.total_cmp(&b.ssr))
+                .unwrap_or(&basins.list[head]);
+            let members: Vec<usize> = group.iter().flat_map(|b| b.members.clone()).collect();
+            let credited: usize = group.iter().map(|b| b.credited.len()).sum();
             let best = &done[basin.best_run].0;
-            let fastest = basin
-                .members
+            let fastest = members
                 .iter()
                 .min_by_key(|&&i| (done[i].0.iterations, i))
                 .copied()
                 .unwrap_or(basin.best_run);
-            let reached_by = basin.members.len() + basin.credited.len();
-            let m = Minimum {
+            let reached_by = members.len() + credited;
+            let valley = (group.len() > 1).then(|| {
+                let ends: Vec<&[f64]> = group.iter().map(|b| b.params.as_slice()).collect();
+                Valley {
+                    minima: group.len(),
+                    direction: cluster::valley_direction(&ends, &scales, tol.param_rtol),
+                    ssr_low: group.iter().map(|b| b.ssr).fold(f64::INFINITY, f64::min),
+                    ssr_high: group.iter().map(|b| b.ssr).fold(f64::NEG_INFINITY, f64::max),
+                }
+            });
+            Minimum {
                 rank: 0,
                 params: basin.params.clone(),
                 ssr: basin.ssr,
                 share: reached_by as f64 / total.max(1) as f64,
                 iterations_median: median(
-                    basin
-                        .members
+                    members
                         .iter()
                         .map(|&i| done[i].0.iterations as f64)
                         .collect(),
@@ -257,20 +312,27 @@ pub fn search(
                 divergent: best.divergent.clone(),
                 start: cands[fastest].point.clone(),
                 reached_by,
-                credited: basin.credited.len(),
-            };
-            m
+                credited,
+                valley,
+            }
         })
         .collect();
     let order = rank::ranking(&minima);
-    let mut rank_of = vec![0usize; minima.len()];
+    let mut rank_of_head = vec![0usize; minima.len()];
     for (k, &i) in order.iter().enumerate() {
-        rank_of[i] = k + 1;
+        rank_of_head[i] = k + 1;
     }
+    // Rank of each basin: that of its valley.
+    let rank_of: Vec<usize> = (0..basins.list.len())
+        .map(|b| {
+            let h = heads.iter().position(|&x| x == valley_of[b]).unwrap_or(0);
+            rank_of_head[h]
+        })
+        .collect();
     let mut ranked: Vec<Minimum> = order
         .iter()
         .map(|&i| Minimum {
-            rank: rank_of[i],
+            rank: rank_of_head[i],
             ..minima[i].clone()
         })
         .collect();
@@ -305,7 +367,8 @@ pub fn search(
         names: names.to_vec(),
         minima: ranked,
         candidates_tried: total,
-        stopped_by_time,
+        stopped_by_time: stop == SearchStop::TimeLimit,
+        stop,
         runs,
     }
 }

@@ -83,6 +83,23 @@ pub struct Minimum {
     pub reached_by: usize,
     /// Of those, runs stopped early and credited to it.
     pub credited: usize,
+    /// When several minima of equal cost lie on one flat valley
+    /// ([`super::cluster::flat_valleys`]) they are reported as this one.
+    pub valley: Option<Valley>,
+}
+
+/// A flat valley: minima of equal cost joined by a path of equal cost.
+#[derive(Debug, Clone, Serialize)]
+pub struct Valley {
+    /// How many minima the search found on it.
+    pub minima: usize,
+    /// Parameters that change along it (indices in parameter order).
+    pub direction: Vec<usize>,
+    /// Lowest and highest sum of squares of those minima.
+    #[serde(serialize_with = "finite_or_null")]
+    pub ssr_low: f64,
+    #[serde(serialize_with = "finite_or_null")]
+    pub ssr_high: f64,
 }
 
 /// The result of a multistart search.
@@ -96,6 +113,8 @@ pub struct SearchOutcome {
     pub candidates_tried: usize,
     /// True when the time limit ended the search before every candidate was tried.
     pub stopped_by_time: bool,
+    /// Why the search ended (every start tried, time limit, or settled early).
+    pub stop: super::SearchStop,
     /// Every local run, in candidate order.
     pub runs: Vec<Run>,
 }
@@ -124,6 +143,7 @@ mod tests {
             start: vec![0.0, 1.0],
             reached_by: 1,
             credited: 0,
+            valley: None,
         };
         let j = serde_json::to_string(&m).unwrap();
         assert!(j.contains("\"params\":[1.0,null]"), "{j}");

@@ -114,6 +114,7 @@ mod tests {
             start: vec![],
             reached_by: 1,
             credited: 0,
+            valley: None,
         }
     }
 

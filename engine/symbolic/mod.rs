@@ -20,6 +20,6 @@ pub mod transforms;
 pub use diff::{diff_param, diff_var};
 pub use expr::{BinOp, Expr, Func};
 pub use model::{Model, ModelError};
-pub use parse::{parse_formula, ParseError, ParsedFormula};
+pub use parse::{parse_formula, parse_formula_for, ParseError, ParsedFormula};
 pub use simplify::simplify;
 pub use tape::Tape;

@@ -2,7 +2,7 @@
 //! become variables, the rest parameters; the response side is fixed.
 
 use super::expr::Expr;
-use super::parse::{parse_formula, ParseError, ParsedFormula};
+use super::parse::{parse_formula_for, ParseError, ParsedFormula};
 use thiserror::Error;
 
 /// Why a formula cannot be used as a model for a given set of columns.
@@ -59,13 +59,14 @@ impl Model {
     }
 
     /// Parses `text` and binds it to `columns`. `response` names the response
-    /// column when the formula has no left side (default `y`).
+    /// column when the formula has no left side (default `y`). A column named
+    /// `e` or `pi` is that column, not the constant.
     pub fn new(
         text: &str,
         columns: &[String],
         response: Option<&str>,
     ) -> Result<Model, ModelError> {
-        let parsed = parse_formula(text)?;
+        let parsed = parse_formula_for(text, columns)?;
         Model::bind(text, parsed, columns, response)
     }
 

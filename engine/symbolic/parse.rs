@@ -19,6 +19,13 @@ pub const MAX_FORMULA_CHARS: usize = 20_000;
 /// Deepest expression tree accepted, so that every recursive pass stays within the stack.
 pub const MAX_DEPTH: usize = 500;
 
+/// The named constants: name, value, and how to write the value when a data
+/// column takes the name.
+pub const CONSTANTS: [(&str, f64, &str); 2] = [
+    ("pi", std::f64::consts::PI, "4*atan(1)"),
+    ("e", std::f64::consts::E, "exp(1)"),
+];
+
 /// A formula that could not be read, with the character where reading stopped.
 #[derive(Debug, Clone, PartialEq, Error)]
 #[error("{message} at character {} of the formula\n{}", position + 1, caret_block(formula, *position))]
@@ -104,11 +111,20 @@ struct Parser {
     at: usize,
     names: Vec<String>,
     depth: usize,
+    /// Constants' names that are data columns: read as names, not numbers.
+    columns_named_as_constants: Vec<String>,
 }
 
 /// Parses a formula. Constants `pi` and `e` become numbers; every other name
 /// not followed by `(` becomes a symbol; a name followed by `(` must be a known function.
 pub fn parse_formula(text: &str) -> Result<ParsedFormula, ParseError> {
+    parse_formula_for(text, &[])
+}
+
+/// Parses a formula for a table with these `columns`: as [`parse_formula`],
+/// except that a column named `e` or `pi` is that column (a symbol); the
+/// constant applies only when no column has the name.
+pub fn parse_formula_for(text: &str, columns: &[String]) -> Result<ParsedFormula, ParseError> {
     let chars: Vec<char> = text.chars().collect();
     if chars.len() > MAX_FORMULA_CHARS {
         return Err(ParseError {
@@ -128,6 +144,11 @@ pub fn parse_formula(text: &str) -> Result<ParsedFormula, ParseError> {
         at: 0,
         names: Vec::new(),
         depth: 0,
+        columns_named_as_constants: CONSTANTS
+            .iter()
+            .map(|(n, _, _)| n.to_string())
+            .filter(|n| columns.contains(n))
+            .collect(),
     };
     if matches!(p.peek(), Tok::End) {
         return Err(p.error_here("formula is empty: expected a model such as 'a*exp(-k*x)'"));
@@ -229,6 +250,14 @@ fn tokenize(chars: &[char], text: &str) -> Result<Vec<(Tok, usize)>, ParseError>
             '(' => Tok::LParen,
             ')' => Tok::RParen,
             '=' => Tok::Eq,
+            '~' => {
+                return Err(err(
+                    start,
+                    "unexpected character '~' (to name the response, write '=', \
+                     as in 'y = a*exp(-k*x)')"
+                        .into(),
+                ))
+            }
             _ => return Err(err(start, format!("unexpected character '{}'", c))),
         };
         i += 1;
@@ -381,10 +410,13 @@ impl Parser {
                         &format!("'{}' is a function: write {}(...)", name, name),
                     ));
                 }
-                match name.as_str() {
-                    "pi" => Ok(Expr::Num(std::f64::consts::PI)),
-                    "e" => Ok(Expr::Num(std::f64::consts::E)),
-                    _ => {
+                let constant = CONSTANTS
+                    .iter()
+                    .find(|(n, _, _)| *n == name)
+                    .filter(|_| !self.columns_named_as_constants.contains(&name));
+                match constant {
+                    Some((_, value, _)) => Ok(Expr::Num(*value)),
+                    None => {
                         let idx = match self.names.iter().position(|n| *n == name) {
                             Some(i) => i,
                             None => {
@@ -461,6 +493,27 @@ mod tests {
         let f = p("log(y) = b1 - b2*x1*exp(-b3*x2)");
         assert!(f.lhs.is_some());
         assert_eq!(f.names, vec!["y", "b1", "b2", "x1", "b3", "x2"]);
+    }
+
+    #[test]
+    fn a_column_named_like_a_constant_is_the_column() {
+        let cols = vec!["e".to_string(), "x".to_string()];
+        let f = parse_formula_for("e = a*exp(-k*x) + pi", &cols).unwrap();
+        assert_eq!(f.names, vec!["e", "a", "k", "x"], "pi stays a constant");
+        let lhs = f.lhs.unwrap();
+        assert_eq!(lhs.eval(&[7.0, 0.0, 0.0, 0.0], &[]), 7.0);
+        // Without such a column the names are the constants.
+        let f = parse_formula_for("a*e + pi*x", &["x".to_string()]).unwrap();
+        assert_eq!(f.names, vec!["a", "x"]);
+        let v = f.rhs.eval(&[1.0, 1.0], &[]);
+        assert!((v - (std::f64::consts::E + std::f64::consts::PI)).abs() < 1e-15);
+    }
+
+    #[test]
+    fn a_tilde_gets_a_hint_to_write_equals() {
+        let e = parse_formula("y ~ a*x").unwrap_err();
+        assert_eq!(e.position, 2);
+        assert!(e.message.contains("to name the response, write '='"), "{e}");
     }
 
     #[test]

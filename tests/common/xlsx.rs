@@ -98,4 +98,3 @@ pub fn write_xlsx_xml(path: &Path, sheets: &[(&str, String)]) {
     }
     std::fs::write(path, buf.into_inner()).unwrap();
 }
-
