@@ -213,7 +213,7 @@ mod tests {
         assert_eq!(m.response, "rate");
         // A library model comes in the library's documented order, whatever
         // the formula's own order.
-        let s = resolve_model("logistic-4", Some("log_dose")).unwrap();
+        let s = resolve_model("logistic-4", Some("log_dose"), &[]).unwrap();
         let m = bind_model(&s, &data(&["log_dose", "y"]), None).unwrap();
         assert_eq!(m.params, vec!["baseline", "full_effect", "x_half", "slope"]);
         // A name containing x is not touched: only the variable x is renamed.
