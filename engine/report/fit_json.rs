@@ -39,6 +39,8 @@ pub struct FitJson<'a> {
     pub condition_number: Option<f64>,
     /// Row i, column j: correlation of parameters i and j (parameter order).
     pub correlation: Vec<Vec<Option<f64>>>,
+    /// Row i, column j: covariance s²·(JᵀJ)⁻¹ of parameters i and j (parameter order).
+    pub covariance: Vec<Vec<Option<f64>>>,
     pub warnings: Vec<&'a str>,
     /// Local fits run by the multistart search (only when no starts were given).
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -94,6 +96,10 @@ pub fn fit_document<'a>(summary: &'a FitSummary, ctx: &'a FitContext) -> FitJson
             .iter()
             .map(|r| r.iter().map(|&v| finite(v)).collect())
             .collect(),
+        covariance: crate::fit::covariance::covariance_matrix(summary)
+            .iter()
+            .map(|r| r.iter().map(|&v| finite(v)).collect())
+            .collect(),
         warnings: ctx
             .warnings
             .iter()
@@ -127,6 +133,11 @@ mod tests {
         assert_eq!(v["parameters"][1]["estimate"], -3.2e-9);
         assert!(v["correlation"][0][1].is_null());
         assert_eq!(v["correlation"][1][1], 1.0);
+        // Covariance: se_i·se_j·r_ij; null where a standard error is undefined.
+        let se0 = sample_summary().parameters[0].std_error;
+        assert_eq!(v["covariance"][0][0], se0 * se0);
+        assert!(v["covariance"][0][1].is_null());
+        assert!(v["covariance"][1][1].is_null());
         assert_eq!(v["dof"], 32);
         assert_eq!(v["converged"], true);
         assert_eq!(v["stop_reason"], "small_reduction");

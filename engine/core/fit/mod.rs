@@ -1,9 +1,14 @@
 //! Local fitting: the Levenberg–Marquardt fitter, the statistics of a fit,
 //! and the binding of a model to data as a least-squares problem.
 
+pub mod compare;
+pub mod covariance;
+pub mod derived;
 pub mod domain;
 pub mod lm;
+pub mod predict;
 pub mod problem;
+pub mod profile;
 pub mod stats;
 pub mod svd;
 pub mod tdist;
