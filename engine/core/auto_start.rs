@@ -205,6 +205,7 @@ mod tests {
             divergent,
             reached_by: 1,
             credited: 0,
+            valley: None,
         }
     }
 
@@ -215,6 +216,7 @@ mod tests {
             minima,
             candidates_tried: 3,
             stopped_by_time: false,
+            stop: crate::search::SearchStop::EveryStartTried,
             runs: Vec::new(),
         };
         // A divergent minimum first, a worse proper one, then the best proper one.
