@@ -96,7 +96,7 @@ pub fn fit_document<'a>(summary: &'a FitSummary, ctx: &'a FitContext) -> FitJson
             .iter()
             .map(|r| r.iter().map(|&v| finite(v)).collect())
             .collect(),
-        covariance: crate::fit::covariance::covariance_matrix(summary)
+        covariance: foothold::fit::covariance::covariance_matrix(summary)
             .iter()
             .map(|r| r.iter().map(|&v| finite(v)).collect())
             .collect(),
