@@ -100,7 +100,7 @@ fn dose_response_with_zero_dose_controls() {
     let opts = LmOptions::default();
     let (mut total, mut ok, mut steps) = (0usize, 0usize, 0usize);
     let mut failures = Vec::new();
-    for form in 0..FORMS.len() {
+    for (form, (form_name, _)) in FORMS.iter().enumerate() {
         for rising in [false, true] {
             let mut group_ok = 0;
             for i in 0..PER_GROUP {
@@ -109,7 +109,7 @@ fn dose_response_with_zero_dose_controls() {
                 let y2: f64 = pr.y.iter().map(|v| v * v).sum();
                 let label = format!(
                     "{} {} #{i} ({note})",
-                    FORMS[form].0,
+                    form_name,
                     if rising { "rising" } else { "falling" }
                 );
                 total += 1;
@@ -150,7 +150,7 @@ fn dose_response_with_zero_dose_controls() {
             }
             println!(
                 "{:<14} {:<8} {:>3}/{}",
-                FORMS[form].0,
+                form_name,
                 if rising { "rising" } else { "falling" },
                 group_ok,
                 PER_GROUP
