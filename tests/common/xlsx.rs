@@ -1,5 +1,5 @@
-//! Small .xlsx workbooks written in the tests (the same minimal parts as
-//! the reader's unit tests in engine/data/file_tests.rs write).
+//! Small .xlsx workbooks written in the tests; the reader's unit tests
+//! (engine/core/data/file_tests.rs) include this file too.
 
 #![allow(dead_code)]
 

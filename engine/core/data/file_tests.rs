@@ -2,8 +2,11 @@
 //! with each separator, and workbooks written in the test.
 
 use super::*;
-use std::io::Write;
 use std::path::PathBuf;
+
+/// The .xlsx writer shared with the integration tests.
+#[path = "../../../tests/common/xlsx.rs"]
+mod xlsx;
 
 /// A fresh file in the system temp directory, removed when dropped.
 struct TempFile(PathBuf);
@@ -108,85 +111,19 @@ fn sheet_option_on_text_is_refused() {
     ));
 }
 
-/// Writes a minimal .xlsx with the given sheets; each sheet is rows of cells,
-/// a cell being `Some(text)` (a number if it parses, else inline text) or `None`.
+/// Writes a minimal .xlsx with the given sheets into a fresh [`TempFile`]
+/// (the writer is the integration tests' own, `tests/common/xlsx.rs`).
 fn write_xlsx(name: &str, sheets: &[(&str, Vec<Vec<Option<&str>>>)]) -> TempFile {
-    let sheets: Vec<(&str, String)> = sheets
-        .iter()
-        .map(|(sheet, rows)| {
-            let mut xml = String::new();
-            for (i, row) in rows.iter().enumerate() {
-                let r = i + 1;
-                xml += &format!(r#"<row r="{r}">"#);
-                for (j, cell) in row.iter().enumerate() {
-                    let col = (b'A' + j as u8) as char;
-                    match cell {
-                        None => {}
-                        Some(t) if t.parse::<f64>().is_ok() => {
-                            xml += &format!(r#"<c r="{col}{r}"><v>{t}</v></c>"#)
-                        }
-                        Some(t) => {
-                            xml +=
-                                &format!(r#"<c r="{col}{r}" t="inlineStr"><is><t>{t}</t></is></c>"#)
-                        }
-                    }
-                }
-                xml += "</row>";
-            }
-            (*sheet, xml)
-        })
-        .collect();
-    write_xlsx_xml(name, &sheets)
+    let f = TempFile::new(name, b"");
+    xlsx::write_xlsx(&f.0, sheets);
+    f
 }
 
 /// Writes a minimal .xlsx whose sheets hold the given `<sheetData>` contents.
 fn write_xlsx_xml(name: &str, sheets: &[(&str, String)]) -> TempFile {
-    use zip::write::SimpleFileOptions;
-    let mut buf = std::io::Cursor::new(Vec::new());
-    {
-        let mut z = zip::ZipWriter::new(&mut buf);
-        let o = SimpleFileOptions::default().compression_method(zip::CompressionMethod::Stored);
-        let mut ct = String::from(
-            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"><Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/><Default Extension="xml" ContentType="application/xml"/><Override PartName="/xl/workbook.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.sheet.main+xml"/>"#,
-        );
-        let mut wb = String::from(
-            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><workbook xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets>"#,
-        );
-        let mut rels = String::from(
-            r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">"#,
-        );
-        for (k, (sheet, rows_xml)) in sheets.iter().enumerate() {
-            let n = k + 1;
-            ct += &format!(
-                r#"<Override PartName="/xl/worksheets/sheet{n}.xml" ContentType="application/vnd.openxmlformats-officedocument.spreadsheetml.worksheet+xml"/>"#
-            );
-            wb += &format!(r#"<sheet name="{sheet}" sheetId="{n}" r:id="rId{n}"/>"#);
-            rels += &format!(
-                r#"<Relationship Id="rId{n}" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet{n}.xml"/>"#
-            );
-            let mut xml = String::from(
-                r#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>"#,
-            );
-            xml += rows_xml;
-            xml += "</sheetData></worksheet>";
-            z.start_file(format!("xl/worksheets/sheet{n}.xml"), o)
-                .unwrap();
-            z.write_all(xml.as_bytes()).unwrap();
-        }
-        ct += "</Types>";
-        wb += "</sheets></workbook>";
-        rels += "</Relationships>";
-        z.start_file("[Content_Types].xml", o).unwrap();
-        z.write_all(ct.as_bytes()).unwrap();
-        z.start_file("_rels/.rels", o).unwrap();
-        z.write_all(br#"<?xml version="1.0" encoding="UTF-8" standalone="yes"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/officeDocument" Target="xl/workbook.xml"/></Relationships>"#).unwrap();
-        z.start_file("xl/workbook.xml", o).unwrap();
-        z.write_all(wb.as_bytes()).unwrap();
-        z.start_file("xl/_rels/workbook.xml.rels", o).unwrap();
-        z.write_all(rels.as_bytes()).unwrap();
-        z.finish().unwrap();
-    }
-    TempFile::new(name, &buf.into_inner())
+    let f = TempFile::new(name, b"");
+    xlsx::write_xlsx_xml(&f.0, sheets);
+    f
 }
 
 #[test]
